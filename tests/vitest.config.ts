@@ -1,0 +1,26 @@
+// Test projects: unit (pure, fast), physics (statistical tracer checks, slower), api (real Postgres + built server).
+import { defineConfig } from 'vitest/config'
+import { fileURLToPath } from 'node:url'
+
+const root = fileURLToPath(new URL('..', import.meta.url))
+
+export default defineConfig({
+  test: {
+    root,
+    projects: [
+      { extends: true, test: { name: 'unit', include: ['tests/unit/**/*.test.ts'], environment: 'node' } },
+      { extends: true, test: { name: 'physics', include: ['tests/physics/**/*.test.ts'], environment: 'node', testTimeout: 300_000 } },
+      {
+        extends: true,
+        test: {
+          name: 'api',
+          include: ['tests/api/**/*.test.ts'],
+          environment: 'node',
+          testTimeout: 120_000,
+          hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
+    ],
+  },
+})
