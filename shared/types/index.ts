@@ -1,0 +1,3 @@
+export * from './scenario'
+export * from './geometry'
+export * from './result'

@@ -1,0 +1,60 @@
+// The result of a trace: every Monte Carlo figure carries its standard error. Fractions are per launched ray.
+// Angles in degrees (edge of the system). Intensities are in 1/sr per launched ray (a Lambertian source of unit
+// flux has I(θ) = cosθ/π).
+import { z } from 'zod'
+
+const fractionWithErr = z.object({ value: z.number(), stdErr: z.number() })
+
+export const lossesSchema = z.object({
+  reflector: z.number(),
+  substrate: z.number(),
+  waveguided: z.number(),
+  trapped: z.number(),
+  unresolved: z.number(),
+})
+
+export const resultSchema = z.object({
+  rays: z.number().int(),
+  seed: z.number().int(),
+  /** Fraction of launched rays that leave into air. */
+  extraction: z.number(),
+  /** Binomial standard error √(η(1−η)/N). */
+  extractionStdErr: z.number(),
+  losses: lossesSchema,
+  lossesStdErr: lossesSchema,
+  intensity: z.object({
+    /** Lower edges of the polar bins (deg); 90 bins of 1°. */
+    thetaBinWidthDeg: z.number(),
+    thetaCentersDeg: z.array(z.number()),
+    /** Azimuth-averaged intensity in air, 1/sr per launched ray: count/(N·2π(cosθa − cosθb)). */
+    perSteradian: z.array(z.number()),
+    perSteradianStdErr: z.array(z.number()),
+    /** θ–φ map, row-major [thetaBin * phiBins + phiBin], 1/sr per launched ray; φ measured from +x. */
+    map: z.object({
+      thetaBins: z.number().int(),
+      phiBins: z.number().int(),
+      phiBinWidthDeg: z.number(),
+      perSteradian: z.array(z.number()),
+      perSteradianStdErr: z.array(z.number()),
+    }),
+  }),
+  luminance: z.object({
+    /** L(θ)/L_Lambertian of the same (launched) flux: π·I(θ)/cosθ, at the bin centres. */
+    relative: z.array(z.number()),
+    relativeStdErr: z.array(z.number()),
+    /** Relative luminance on axis, estimated over the cone θ < onAxisConeDeg. */
+    onAxisRelative: z.number(),
+    onAxisRelativeStdErr: z.number(),
+    onAxisConeDeg: z.number(),
+    /** Angle where luminance first falls to half its on-axis value (deg); null if it never does before 89.5°. */
+    halfLuminanceAngleDeg: z.number().nullable(),
+  }),
+  planar: z.object({ extraction: z.number(), extractionStdErr: z.number(), losses: lossesSchema }),
+  /** extraction / planar.extraction; σ from (σE/E)² = (σ1/η1)² + (σ2/η2)² (independent streams). */
+  enhancement: z.number(),
+  enhancementStdErr: z.number(),
+})
+
+export type TraceResult = z.infer<typeof resultSchema>
+export type Losses = z.infer<typeof lossesSchema>
+export { fractionWithErr }

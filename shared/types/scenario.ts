@@ -1,0 +1,184 @@
+// The scenario file: one zod schema for the stack a designer wants traced. The same schema validates the
+// editor form, the HTTP body, the CLI file and the worker task. Lengths in µm, absorption in 1/mm, angles in
+// degrees (this is an edge of the system; the core converts to radians when it packs the scene).
+import { z } from 'zod'
+
+/** Tabulated emitter profile: [thetaDeg, relativeIntensity] rows, radiant intensity per steradian in the emitter. */
+const profileTableSchema = z
+  .array(
+    z.tuple([
+      z.number().min(0).max(180),
+      z.number().min(0),
+    ]),
+  )
+  .min(2)
+  .superRefine((rows, ctx) => {
+    for (let i = 1; i < rows.length; i++) {
+      if (!(rows[i]![0] > rows[i - 1]![0])) {
+        ctx.addIssue({ code: 'custom', path: [i, 0], message: `thetaDeg must increase row by row: got ${rows[i]![0]} after ${rows[i - 1]![0]}` })
+        return
+      }
+    }
+    if (!rows.some((r) => r[1] > 0)) ctx.addIssue({ code: 'custom', message: 'at least one relative intensity must be above 0' })
+  })
+
+export const angularProfileSchema = z.union([
+  z.literal('isotropic'),
+  z.literal('lambertian'),
+  z.object({ table: profileTableSchema }),
+])
+
+export const sourceSchema = z.discriminatedUnion('shape', [
+  z.object({ shape: z.literal('extended') }),
+  z.object({ shape: z.literal('disc'), radiusUm: z.number().positive().max(1e6) }),
+  z.object({ shape: z.literal('rectangle'), widthUm: z.number().positive().max(1e6), heightUm: z.number().positive().max(1e6) }),
+])
+
+export const emitterSchema = z.object({
+  index: z.number().min(1).max(4),
+  angularProfile: angularProfileSchema.default('isotropic'),
+  source: sourceSchema.default({ shape: 'extended' }),
+})
+
+export const reflectorSchema = z.object({
+  reflectance: z.number().min(0).max(1),
+  diffuseFraction: z.number().min(0).max(1).default(0),
+})
+
+export const substrateSchema = z.object({
+  index: z.number().min(1).max(4),
+  thicknessUm: z.number().positive().max(1e6),
+  absorptionPerMm: z.number().min(0).max(1e4).default(0),
+})
+
+export const lensShapeSchema = z.enum(['spherical', 'parabolic', 'conic'])
+
+export const lensArraySchema = z
+  .object({
+    lattice: z.enum(['hexagonal', 'square']),
+    pitchUm: z.number().positive().max(1e6),
+    diameterUm: z.number().positive().max(1e6),
+    sagUm: z.number().positive().max(1e6),
+    shape: lensShapeSchema.default('spherical'),
+    /** Conic constant k of the cap profile (required when shape is "conic"; 0 sphere, −1 paraboloid). */
+    conicConstant: z.number().min(-1e3).max(1e3).optional(),
+    /** Lens material index; defaults to the substrate index. */
+    index: z.number().min(1).max(4).optional(),
+  })
+  .superRefine((l, ctx) => {
+    if (l.diameterUm > l.pitchUm) {
+      ctx.addIssue({ code: 'custom', path: ['diameterUm'], message: `must be at most pitchUm (caps may touch, not overlap): got ${l.diameterUm}, max ${l.pitchUm}` })
+    }
+    const a = l.diameterUm / 2
+    if (l.shape === 'spherical' && l.sagUm > a) {
+      ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2 for a spherical cap: got ${l.sagUm}, max ${a}` })
+    }
+    if (l.shape === 'conic') {
+      if (l.conicConstant === undefined) {
+        ctx.addIssue({ code: 'custom', path: ['conicConstant'], message: 'is required when shape is "conic"' })
+      } else if (l.conicConstant > -1) {
+        // The cap must lie on the lower branch of the conic: (1+k)·h² ≤ a² (see shared/types/geometry.ts).
+        const maxSag = a / Math.sqrt(1 + l.conicConstant)
+        if (l.sagUm > maxSag) {
+          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2/√(1+conicConstant) for this conic cap: got ${l.sagUm}, max ${round4(maxSag)}` })
+        }
+      }
+    }
+  })
+
+export const fresnelModeSchema = z.enum(['averaged', 'none'])
+
+export const traceSchema = z.object({
+  rays: z.number().int().min(1).max(1e10).default(1_000_000),
+  seed: z.number().int().min(0).max(0xffffffff).default(1),
+  /** "averaged": reflect with probability (Rs+Rp)/2 (reference). "none": transmit unless TIR (test extension). */
+  fresnel: fresnelModeSchema.default('averaged'),
+  /** Interface and reflector encounters after which a ray is counted as unresolved. */
+  maxEvents: z.number().int().min(1).max(1e7).default(10_000),
+})
+
+export const scenarioSchema = z
+  .object({
+    emitter: emitterSchema,
+    reflector: reflectorSchema,
+    substrate: substrateSchema,
+    lensArray: lensArraySchema.nullable(),
+    trace: traceSchema.default({ rays: 1_000_000, seed: 1, fresnel: 'averaged', maxEvents: 10_000 }),
+  })
+  .transform((s) => ({
+    ...s,
+    lensArray: s.lensArray === null ? null : { ...s.lensArray, index: s.lensArray.index ?? s.substrate.index },
+  }))
+
+/** A validated scenario with every default filled in (lensArray.index always set when there is an array). */
+export type Scenario = z.infer<typeof scenarioSchema>
+/** What a user may write (defaults optional). */
+export type ScenarioInput = z.input<typeof scenarioSchema>
+export type LensArray = NonNullable<Scenario['lensArray']>
+export type AngularProfile = Scenario['emitter']['angularProfile']
+export type Source = Scenario['emitter']['source']
+export type FresnelMode = z.infer<typeof fresnelModeSchema>
+
+function round4(x: number): number {
+  return Number(x.toPrecision(4))
+}
+
+function valueAt(data: unknown, path: ReadonlyArray<PropertyKey>): unknown {
+  let v: unknown = data
+  for (const k of path) {
+    if (v === null || typeof v !== 'object') return undefined
+    v = (v as Record<PropertyKey, unknown>)[k]
+  }
+  return v
+}
+
+function pathText(path: ReadonlyArray<PropertyKey>): string {
+  let s = ''
+  for (const k of path) s += typeof k === 'number' ? `[${k}]` : s === '' ? String(k) : `.${String(k)}`
+  return s === '' ? 'scenario' : s
+}
+
+/**
+ * Turns a zod error into one message per issue, each naming the field path and the allowed range, e.g.
+ * "lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5".
+ * `data` is the raw input (used to quote the offending value).
+ */
+export function scenarioErrorMessages(error: z.ZodError, data?: unknown): string[] {
+  return error.issues.map((iss) => {
+    const where = pathText(iss.path)
+    const got = valueAt(data, iss.path)
+    const gotText = got === undefined ? '' : `: got ${JSON.stringify(got)}`
+    switch (iss.code) {
+      case 'too_small': {
+        const min = Number(iss.minimum)
+        if (iss.origin === 'array') return `${where} must have at least ${min} entries${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
+        return `${where} must be ${iss.inclusive ? 'at least' : 'greater than'} ${min}${gotText}`
+      }
+      case 'too_big': {
+        const max = Number(iss.maximum)
+        if (iss.origin === 'array') return `${where} must have at most ${max} entries`
+        return `${where} must be ${iss.inclusive ? 'at most' : 'less than'} ${max}${gotText}`
+      }
+      case 'invalid_type':
+        return got === undefined ? `${where} is required (${iss.expected})` : `${where} must be ${iss.expected}${gotText}`
+      case 'invalid_value':
+        return `${where} must be one of ${iss.values.map((v) => JSON.stringify(v)).join(', ')}${gotText}`
+      case 'invalid_union':
+        if (where.endsWith('source')) return `${where}.shape must be one of "extended", "disc" {radiusUm}, "rectangle" {widthUm, heightUm}${gotText}`
+        if (where.endsWith('angularProfile')) return `${where} must be "isotropic", "lambertian" or { table: [[thetaDeg, relIntensity], ...] }${gotText}`
+        return `${where} is not valid: ${iss.message}${gotText}`
+      case 'unrecognized_keys':
+        return `${where} has unknown field(s): ${iss.keys.join(', ')}`
+      case 'custom':
+        return `${where} ${iss.message}`
+      default:
+        return `${where}: ${iss.message}${gotText}`
+    }
+  })
+}
+
+/** Parses and validates; returns either the scenario or the field-named messages. */
+export function parseScenario(data: unknown): { ok: true; scenario: Scenario } | { ok: false; errors: string[] } {
+  const r = scenarioSchema.safeParse(data)
+  return r.success ? { ok: true, scenario: r.data } : { ok: false, errors: scenarioErrorMessages(r.error, data) }
+}
