@@ -1,4 +1,5 @@
 // Lensfield: Nuxt 4 configuration, set up by hand.
+// The Tailwind theme lives here (no tailwind.config at the top level): Lensfield's own palette and type scale.
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss'],
@@ -6,4 +7,50 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   typescript: { strict: true },
+  runtimeConfig: {
+    // NUXT_PUBLIC_DEMO_MODE=true (set by npm start / npm run dev) lists the demo accounts on the sign-in page.
+    public: { demoMode: false },
+  },
+  app: {
+    head: {
+      title: 'Lensfield',
+      htmlAttrs: { lang: 'en' },
+      meta: [{ name: 'description', content: 'Lens-film design for OLED light extraction' }],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  tailwindcss: {
+    exposeConfig: false,
+    viewer: false,
+    config: {
+      theme: {
+        extend: {
+          colors: {
+            // "ink": deep blue-grey for text and the header; "paper" surfaces; "rule" hairlines and borders.
+            ink: { DEFAULT: '#17202b', soft: '#3a4656', muted: '#64707f' },
+            paper: { DEFAULT: '#f6f5f1', raised: '#ffffff', sunk: '#ebe9e2' },
+            rule: { DEFAULT: '#d8d5cc', strong: '#b9b5aa' },
+            // "ember": the warm accent of an emitting tile; "lagoon": the cool accent for links and focus.
+            ember: { 50: '#fdf4e7', 200: '#f6d39a', 500: '#d9892b', 600: '#b86d18', 800: '#6e3f0b' },
+            lagoon: { 50: '#e8f3f3', 200: '#a9d3d2', 500: '#2b8584', 600: '#1f6b6a', 800: '#123f3f' },
+            alert: { 50: '#fbeceb', 500: '#b43c32', 700: '#85261f' },
+          },
+          fontFamily: {
+            sans: ['"Source Sans 3"', 'system-ui', 'sans-serif'],
+            mono: ['ui-monospace', 'SFMono-Regular', 'Menlo', 'monospace'],
+          },
+          // A 1.2 ratio scale from 13 px; names say what the size is for.
+          fontSize: {
+            note: ['0.8125rem', { lineHeight: '1.15rem' }],
+            body: ['0.9375rem', { lineHeight: '1.4rem' }],
+            lede: ['1.125rem', { lineHeight: '1.6rem' }],
+            heading: ['1.35rem', { lineHeight: '1.8rem', fontWeight: '600' }],
+            title: ['1.62rem', { lineHeight: '2.1rem', fontWeight: '600' }],
+            banner: ['1.944rem', { lineHeight: '2.4rem', fontWeight: '600' }],
+          },
+          borderRadius: { panel: '6px' },
+        },
+      },
+    },
+  },
 })

@@ -51,6 +51,16 @@ export function freePort(): Promise<number> {
   })
 }
 
+/** True when host:port can be bound right now. */
+export function portIsFree(port: number, host = '127.0.0.1'): Promise<boolean> {
+  return new Promise((res) => {
+    const srv = createServer()
+    srv.unref()
+    srv.once('error', () => res(false))
+    srv.listen(port, host, () => srv.close(() => res(true)))
+  })
+}
+
 function findBinDir(): string | null {
   const base = '/usr/lib/postgresql'
   if (!existsSync(base)) return null
@@ -149,14 +159,15 @@ function initCluster(bin: string, dataDir: string): string {
   return password
 }
 
-function startServer(bin: string, dataDir: string, port: number) {
+function startServer(bin: string, dataDir: string, port: number, throwaway: boolean) {
   // A server left running by an earlier run that was killed hard: stop it before starting on a new port.
   if (runPg(bin, 'pg_ctl', ['status', '-D', dataDir], { quiet: true }).status === 0) {
     log('stopping a server left running by an earlier run')
     runPg(bin, 'pg_ctl', ['stop', '-D', dataDir, '-m', 'fast', '-w'], { quiet: true })
   }
   // Loopback TCP only; no Unix socket (its default folder may not exist or be writable).
-  const serverOpts = `-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories='' -c fsync=off`
+  // fsync off only for throwaway test clusters: faster, and their data is deleted anyway.
+  const serverOpts = `-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories=''${throwaway ? ' -c fsync=off' : ''}`
   runPg(bin, 'pg_ctl', ['start', '-D', dataDir, '-w', '-t', '60', '-l', join(dataDir, 'server.log'), '-o', serverOpts])
   log(`server running on 127.0.0.1:${port}`)
 }
@@ -214,7 +225,7 @@ export async function ensurePostgres(opts: { database: string, throwaway?: boole
   }
   const password = initCluster(bin, dataDir)
   const port = await freePort()
-  startServer(bin, dataDir, port)
+  startServer(bin, dataDir, port, opts.throwaway ?? false)
   let stopped = false
   const stop = () => {
     if (stopped) return

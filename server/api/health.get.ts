@@ -1,1 +1,7 @@
-export default defineEventHandler(() => ({ ok: true }))
+// Liveness for people and scripts: the app version and whether the database answers.
+import { version } from '../../package.json'
+
+export default defineEventHandler(async () => ({
+  version,
+  database: (await databaseAnswers()) ? 'ok' : 'down',
+}))

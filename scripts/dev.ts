@@ -1,0 +1,25 @@
+// `npm run dev`: Postgres on loopback with migrations and demo data, then `nuxt dev` (hot reload) against it.
+import pg from 'pg'
+import type { ChildProcess } from 'node:child_process'
+import { ensurePostgres, migrateDatabase, stopOnExit } from './postgres'
+import { bin, startChild } from './run'
+import { dbFromPool } from '../server/utils/db'
+import { loadDemoData } from '../server/utils/demo'
+
+let nuxt: ChildProcess | undefined
+const db = await ensurePostgres({ database: 'lensfield' })
+stopOnExit(() => {
+  if (nuxt && nuxt.exitCode === null) nuxt.kill('SIGTERM')
+  db.stop()
+})
+await migrateDatabase(db.url)
+const pool = new pg.Pool({ connectionString: db.url, max: 2 })
+await loadDemoData(dbFromPool(pool))
+await pool.end()
+
+nuxt = startChild(bin('nuxt'), ['dev', '--host', process.env.HOST ?? '127.0.0.1', ...process.argv.slice(2)], {
+  ...process.env,
+  DATABASE_URL: db.url,
+  NUXT_PUBLIC_DEMO_MODE: 'true',
+})
+nuxt.on('exit', (code) => process.exit(code ?? 1))

@@ -1,0 +1,51 @@
+// `npm start`: Postgres on loopback → migrations → demo data → production build → node .output/server/index.mjs.
+// Prints the URL and the demo accounts. Ctrl-C (or SIGTERM) stops the app and the database server it started.
+import pg from 'pg'
+import { join } from 'node:path'
+import { ensurePostgres, freePort, migrateDatabase, portIsFree, repoRoot, stopOnExit } from './postgres'
+import { buildApp, startChild, waitForHttp } from './run'
+import { dbFromPool } from '../server/utils/db'
+import { DEMO_USERS, loadDemoData } from '../server/utils/demo'
+import type { ChildProcess } from 'node:child_process'
+
+let app: ChildProcess | undefined
+const db = await ensurePostgres({ database: 'lensfield' })
+stopOnExit(() => {
+  if (app && app.exitCode === null) app.kill('SIGTERM')
+  db.stop()
+})
+
+await migrateDatabase(db.url)
+const pool = new pg.Pool({ connectionString: db.url, max: 2 })
+await loadDemoData(dbFromPool(pool))
+await pool.end()
+console.log('[demo] demo data loaded')
+
+buildApp()
+
+const host = process.env.HOST ?? '127.0.0.1'
+// PORT when given; else 3000 when free (a stable address for bookmarks); else any free port.
+const port = Number(process.env.PORT) || (await portIsFree(3000, host) ? 3000 : await freePort())
+app = startChild(process.execPath, [join(repoRoot, '.output', 'server', 'index.mjs')], {
+  ...process.env,
+  DATABASE_URL: db.url,
+  HOST: host,
+  PORT: String(port),
+  NODE_ENV: 'production',
+  NUXT_PUBLIC_DEMO_MODE: 'true',
+})
+app.on('exit', (code, signal) => {
+  console.log(`[start] app server ended (${signal ?? `exit ${code}`})`)
+  process.exit(code ?? 1)
+})
+
+const url = `http://${host.includes(':') ? `[${host}]` : host}:${port}`
+await waitForHttp(`${url}/api/health`)
+console.log(`
+Lensfield is running at ${url}
+
+Demo accounts (team "Tallowby Luminous Panels"):
+${DEMO_USERS.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(34)} password: ${u.password}`).join('\n')}
+
+Press Ctrl-C to stop the app and its database server.
+`)

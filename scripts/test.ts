@@ -1,0 +1,25 @@
+// `npm test`: a throwaway Postgres (fresh cluster in a temp folder, or a fresh database on DATABASE_URL's server),
+// migrations, the production build, then every vitest project (unit, physics, api). The api project's global
+// setup (tests/api/global-setup.ts) starts the built server against that database. Extra arguments go to vitest,
+// e.g. `npm test -- --project unit`.
+import { randomBytes } from 'node:crypto'
+import { spawnSync } from 'node:child_process'
+import { createDatabase, ensurePostgres, migrateDatabase, repoRoot, stopOnExit } from './postgres'
+import { bin, buildApp } from './run'
+
+const server = await ensurePostgres({ database: 'postgres', throwaway: true })
+const dbName = `lensfield_test_${randomBytes(4).toString('hex')}`
+stopOnExit(() => {
+  if (!server.started) {
+    // Someone else's server: drop only the database this run created.
+    spawnSync(process.execPath, ['-e', `const pg=require('pg');const c=new pg.Client(${JSON.stringify(server.adminUrl)});c.connect().then(()=>c.query('DROP DATABASE IF EXISTS "${dbName}" WITH (FORCE)')).finally(()=>c.end())`], { cwd: repoRoot, stdio: 'inherit' })
+  }
+  server.stop()
+})
+const url = await createDatabase(server.adminUrl, dbName)
+await migrateDatabase(url)
+buildApp()
+
+const env = { ...process.env, DATABASE_URL: url, LENSFIELD_PG_ADMIN_URL: server.adminUrl, NODE_ENV: 'test' }
+const r = spawnSync(bin('vitest'), ['run', '--config', 'tests/vitest.config.ts', ...process.argv.slice(2)], { cwd: repoRoot, stdio: 'inherit', env })
+process.exitCode = r.status ?? 1

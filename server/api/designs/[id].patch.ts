@@ -1,0 +1,10 @@
+// Saves a change to a design as its next version.
+import { designUpdateSchema } from '../../../shared/types/design'
+import { idParamSchema } from '../../../shared/types/project'
+
+export default defineEventHandler(async (event) => {
+  const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
+  const { user, design } = await requireDesignRole(event, id, EDITOR_ROLES, 'changing a design')
+  const body = await readValidatedBody(event, zodValidator(designUpdateSchema))
+  return { design: await updateDesign(useDb(), design, user.id, body) }
+})

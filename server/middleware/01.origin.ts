@@ -1,0 +1,16 @@
+// Refuses state-changing requests whose Origin is missing or not this host (cross-site request forgery).
+import { isOriginAllowed } from '../utils/origin'
+
+export default defineEventHandler((event) => {
+  const origin = getRequestHeader(event, 'origin')
+  const host = getRequestHeader(event, 'host')
+  if (!isOriginAllowed(event.method, origin, host)) {
+    throw createError({
+      statusCode: 403,
+      statusMessage: 'Forbidden',
+      message: origin
+        ? `Request refused: origin ${origin} is not this site.`
+        : 'Request refused: a change must come from a Lensfield page (missing Origin header).',
+    })
+  }
+})

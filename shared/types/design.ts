@@ -1,0 +1,18 @@
+// Design bodies: a design is a named scenario (shared/types/scenario.ts) saved in a project.
+import { z } from 'zod'
+import { scenarioSchema } from './scenario'
+import { designNameSchema } from './project'
+
+export const designCreateSchema = z.object({
+  name: designNameSchema,
+  scenario: scenarioSchema,
+})
+export type DesignCreateInput = z.infer<typeof designCreateSchema>
+
+export const designUpdateSchema = z.object({
+  name: designNameSchema.optional(),
+  scenario: scenarioSchema.optional(),
+  /** The version the change was made on; a newer stored version makes the save fail with 409. */
+  baseVersion: z.number({ error: 'baseVersion must be a whole number' }).int({ error: 'baseVersion must be a whole number' }).min(1).optional(),
+}).refine((b) => b.name !== undefined || b.scenario !== undefined, { error: 'send name and/or scenario to change' })
+export type DesignUpdateInput = z.infer<typeof designUpdateSchema>
