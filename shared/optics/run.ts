@@ -1,0 +1,177 @@
+// A whole run: the lens device and its planar companion (the same stack without lenses) traced with the same ray
+// count on independent streams (stream 0 and stream 1 of the same seed), so the enhancement's standard error
+// follows (σE/E)² = (σ1/η1)² + (σ2/η2)². A planar scenario is its own companion (enhancement exactly 1, σ 0).
+// Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
+// integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
+import type { Scenario } from '../types/scenario'
+import type { Losses, TraceResult } from '../types/result'
+import { packScene, type PackedScene, S_HAS_LENS } from './scene'
+import { traceRange } from './tracer'
+import {
+  createTally, mergeTally, PHI_BINS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
+} from './tally'
+
+export const CHUNK_RAYS = 1 << 16
+export const STREAM_DEVICE = 0
+export const STREAM_PLANAR = 1
+/** On-axis luminance is estimated over this cone (deg): a compromise between bias (<0.2 % for smooth profiles) and noise. */
+export const ON_AXIS_CONE_DEG = 5
+
+export interface RunScenes {
+  device: PackedScene
+  /** null when the device itself is planar. */
+  planar: PackedScene | null
+}
+
+export interface RunTallies {
+  device: Tally
+  planar: Tally | null
+}
+
+export function prepareRun(sc: Scenario): RunScenes {
+  const device = packScene(sc)
+  return { device, planar: device[S_HAS_LENS] ? packScene(sc, { planar: true }) : null }
+}
+
+/** Fixed chunk plan for `rays` rays: [firstRay, rayCount] pairs. */
+export function planChunks(rays: number, chunkRays = CHUNK_RAYS): Array<[number, number]> {
+  const out: Array<[number, number]> = []
+  for (let first = 0; first < rays; first += chunkRays) out.push([first, Math.min(chunkRays, rays - first)])
+  return out
+}
+
+/** Traces one ray range of the device and of its planar companion. */
+export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, seed: number, shouldStop?: () => boolean): RunTallies {
+  const device = createTally()
+  traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE)
+  let planar: Tally | null = null
+  if (run.planar) {
+    planar = createTally()
+    traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR)
+  }
+  return { device, planar }
+}
+
+export function mergeRunTallies(dst: RunTallies, src: RunTallies): RunTallies {
+  mergeTally(dst.device, src.device)
+  if (dst.planar && src.planar) mergeTally(dst.planar, src.planar)
+  return dst
+}
+
+/** Single-thread convenience: the whole scenario (ray count and seed from the scenario unless given). */
+export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number } = {}): TraceResult {
+  const rays = opts.rays ?? sc.trace.rays
+  const seed = opts.seed ?? sc.trace.seed
+  const run = prepareRun(sc)
+  const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
+  for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
+  return summarize(total, seed)
+}
+
+function binomialErr(count: number, n: number): number {
+  if (n <= 0) return 0
+  const p = count / n
+  return Math.sqrt((p * (1 - p)) / n)
+}
+
+function lossesOf(t: Tally): { v: Losses; e: Losses } {
+  const n = t[T_RAYS]!
+  const f = (i: number) => (n > 0 ? t[i]! / n : 0)
+  const e = (i: number) => binomialErr(t[i]!, n)
+  return {
+    v: { reflector: f(T_REFLECTOR), substrate: f(T_SUBSTRATE), waveguided: f(T_WAVEGUIDED), trapped: f(T_TRAPPED), unresolved: f(T_UNRESOLVED) },
+    e: { reflector: e(T_REFLECTOR), substrate: e(T_SUBSTRATE), waveguided: e(T_WAVEGUIDED), trapped: e(T_TRAPPED), unresolved: e(T_UNRESOLVED) },
+  }
+}
+
+const DEG = Math.PI / 180
+
+/**
+ * Counts → result. Intensity per launched ray: I = c/(N·ΔΩ), ΔΩ = 2π(cosθa − cosθb) (map: ΔΩ/PHI_BINS), σ from
+ * the binomial √(c(1 − c/N))/(N·ΔΩ). Relative luminance per bin: the bin's fraction of launched rays over what a
+ * Lambertian source emitting exactly the launched flux (I = cosθ/π) puts there, (c/N)/(sin²θb − sin²θa); this is
+ * π·I(θ)/cosθ at 1° resolution, and equals 1 for such a source.
+ */
+export function summarize(t: RunTallies, seed: number): TraceResult {
+  const d = t.device
+  const n = d[T_RAYS]!
+  const ext = n > 0 ? d[T_EXTRACTED]! / n : 0
+  const extErr = binomialErr(d[T_EXTRACTED]!, n)
+  const L = lossesOf(d)
+  const thetaCentersDeg: number[] = [], perSr: number[] = [], perSrErr: number[] = [], lum: number[] = [], lumErr: number[] = []
+  const mapI: number[] = [], mapErr: number[] = []
+  let axisCount = 0
+  for (let b = 0; b < THETA_BINS; b++) {
+    const ta = b * DEG, tb = (b + 1) * DEG
+    const dOmega = 2 * Math.PI * (Math.cos(ta) - Math.cos(tb))
+    const c = d[T_THETA + b]!
+    thetaCentersDeg.push(b + 0.5)
+    const cErr = n > 0 ? Math.sqrt(c * (1 - c / n)) : 0
+    perSr.push(n > 0 ? c / (n * dOmega) : 0)
+    perSrErr.push(n > 0 ? cErr / (n * dOmega) : 0)
+    const lamb = Math.sin(tb) ** 2 - Math.sin(ta) ** 2
+    lum.push(n > 0 ? c / n / lamb : 0)
+    lumErr.push(n > 0 ? cErr / n / lamb : 0)
+    if (b < ON_AXIS_CONE_DEG) axisCount += c
+    const dOm = dOmega / PHI_BINS
+    for (let p = 0; p < PHI_BINS; p++) {
+      const cm = d[T_MAP + b * PHI_BINS + p]!
+      mapI.push(n > 0 ? cm / (n * dOm) : 0)
+      mapErr.push(n > 0 ? Math.sqrt(cm * (1 - cm / n)) / (n * dOm) : 0)
+    }
+  }
+  const axisLamb = Math.sin(ON_AXIS_CONE_DEG * DEG) ** 2
+  const onAxis = n > 0 ? axisCount / n / axisLamb : 0
+  const onAxisErr = n > 0 ? Math.sqrt(axisCount * (1 - axisCount / n)) / n / axisLamb : 0
+  // first crossing of half the on-axis value, linear between bin centres
+  let half: number | null = null
+  if (onAxis > 0) {
+    const target = 0.5 * onAxis
+    for (let b = 0; b < THETA_BINS; b++) {
+      if (lum[b]! <= target) {
+        if (b === 0) { half = 0.5; break }
+        const l0 = lum[b - 1]!, l1 = lum[b]!
+        half = b - 0.5 + (l0 - target) / (l0 - l1)
+        break
+      }
+    }
+  }
+  let planarExt = ext, planarErr = extErr, planarLosses = L.v
+  let enh = 1, enhErr = 0
+  if (t.planar) {
+    const p = t.planar
+    const np = p[T_RAYS]!
+    planarExt = np > 0 ? p[T_EXTRACTED]! / np : 0
+    planarErr = binomialErr(p[T_EXTRACTED]!, np)
+    planarLosses = lossesOf(p).v
+    enh = planarExt > 0 ? ext / planarExt : NaN
+    enhErr = planarExt > 0 && ext > 0 ? enh * Math.sqrt((extErr / ext) ** 2 + (planarErr / planarExt) ** 2) : NaN
+  }
+  return {
+    rays: n,
+    seed,
+    extraction: ext,
+    extractionStdErr: extErr,
+    losses: L.v,
+    lossesStdErr: L.e,
+    intensity: {
+      thetaBinWidthDeg: 1,
+      thetaCentersDeg,
+      perSteradian: perSr,
+      perSteradianStdErr: perSrErr,
+      map: { thetaBins: THETA_BINS, phiBins: PHI_BINS, phiBinWidthDeg: 360 / PHI_BINS, perSteradian: mapI, perSteradianStdErr: mapErr },
+    },
+    luminance: {
+      relative: lum,
+      relativeStdErr: lumErr,
+      onAxisRelative: onAxis,
+      onAxisRelativeStdErr: onAxisErr,
+      onAxisConeDeg: ON_AXIS_CONE_DEG,
+      halfLuminanceAngleDeg: half,
+    },
+    planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses },
+    enhancement: enh,
+    enhancementStdErr: enhErr,
+  }
+}

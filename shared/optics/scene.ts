@@ -1,0 +1,98 @@
+// Packs a validated scenario into the flat numeric scene the tracer reads (Float64Array, fixed slots, integer
+// tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
+// A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
+import type { Scenario } from '../types/scenario'
+import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
+import { buildProfileTable, PROFILE_GRID } from './sampling'
+
+export const S_HAS_LENS = 0
+export const S_N_EMITTER = 1
+export const S_N_SUBSTRATE = 2
+export const S_N_LENS = 3
+export const S_THICKNESS_UM = 4
+export const S_ABSORPTION_PER_UM = 5
+export const S_REFLECTANCE = 6
+export const S_DIFFUSE_FRACTION = 7
+export const S_LATTICE = 8 // 0 hexagonal, 1 square
+export const S_PITCH_UM = 9
+export const S_LENS_RADIUS_UM = 10 // a = D/2
+export const S_SAG_UM = 11
+export const S_CURVATURE_PER_UM = 12 // vertex curvature c
+export const S_K1 = 13 // 1 + conic constant
+export const S_PROFILE = 14 // 0 isotropic, 1 lambertian, 2 table
+export const S_SOURCE = 15 // 0 extended, 1 disc, 2 rectangle
+export const S_SOURCE_A_UM = 16 // disc radius or rectangle width
+export const S_SOURCE_B_UM = 17 // rectangle height
+export const S_FRESNEL = 18 // 0 averaged, 1 none
+export const S_MAX_EVENTS = 19
+export const S_HEADER = 24
+/** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
+export const S_TABLE = S_HEADER
+
+export const LATTICE_HEXAGONAL = 0
+export const LATTICE_SQUARE = 1
+export const PROFILE_ISOTROPIC = 0
+export const PROFILE_LAMBERTIAN = 1
+export const PROFILE_TABLE = 2
+export const SOURCE_EXTENDED = 0
+export const SOURCE_DISC = 1
+export const SOURCE_RECTANGLE = 2
+export const FRESNEL_AVERAGED = 0
+export const FRESNEL_NONE = 1
+
+export type PackedScene = Float64Array
+
+/** Packs the scenario; `planar: true` drops the lens array (the planar companion device). */
+export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): PackedScene {
+  const prof = sc.emitter.angularProfile
+  const tableLen = typeof prof === 'object' ? 2 * (PROFILE_GRID + 1) : 0
+  const s = new Float64Array(S_HEADER + tableLen)
+  const lens = opts.planar ? null : sc.lensArray
+  s[S_HAS_LENS] = lens ? 1 : 0
+  s[S_N_EMITTER] = sc.emitter.index
+  s[S_N_SUBSTRATE] = sc.substrate.index
+  s[S_THICKNESS_UM] = sc.substrate.thicknessUm
+  s[S_ABSORPTION_PER_UM] = sc.substrate.absorptionPerMm / 1000
+  s[S_REFLECTANCE] = sc.reflector.reflectance
+  s[S_DIFFUSE_FRACTION] = sc.reflector.diffuseFraction
+  const geo = sc.lensArray // the lattice still defines the launch cell of an extended source in the planar twin
+  s[S_LATTICE] = geo && geo.lattice === 'square' ? LATTICE_SQUARE : LATTICE_HEXAGONAL
+  s[S_PITCH_UM] = geo ? geo.pitchUm : 1
+  if (lens) {
+    const k = shapeConicConstant(lens.shape, lens.conicConstant)
+    s[S_N_LENS] = lens.index ?? sc.substrate.index
+    s[S_LENS_RADIUS_UM] = lens.diameterUm / 2
+    s[S_SAG_UM] = lens.sagUm
+    s[S_CURVATURE_PER_UM] = conicCurvaturePerUm(lens.diameterUm, lens.sagUm, k)
+    s[S_K1] = 1 + k
+  } else {
+    s[S_N_LENS] = sc.substrate.index
+  }
+  if (prof === 'isotropic') s[S_PROFILE] = PROFILE_ISOTROPIC
+  else if (prof === 'lambertian') s[S_PROFILE] = PROFILE_LAMBERTIAN
+  else {
+    s[S_PROFILE] = PROFILE_TABLE
+    s.set(buildProfileTable(prof.table as Array<[number, number]>), S_TABLE)
+  }
+  const src = sc.emitter.source
+  if (src.shape === 'extended') s[S_SOURCE] = SOURCE_EXTENDED
+  else if (src.shape === 'disc') { s[S_SOURCE] = SOURCE_DISC; s[S_SOURCE_A_UM] = src.radiusUm }
+  else { s[S_SOURCE] = SOURCE_RECTANGLE; s[S_SOURCE_A_UM] = src.widthUm; s[S_SOURCE_B_UM] = src.heightUm }
+  s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : FRESNEL_AVERAGED
+  s[S_MAX_EVENTS] = sc.trace.maxEvents
+  return s
+}
+
+/** Multiplies every length of a packed scene by `factor` (for scale-invariance checks; absorption scales as 1/L). */
+export function scaleScene(scene: PackedScene, factor: number): PackedScene {
+  const s = scene.slice()
+  s[S_THICKNESS_UM] = s[S_THICKNESS_UM]! * factor
+  s[S_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! / factor
+  s[S_PITCH_UM] = s[S_PITCH_UM]! * factor
+  s[S_LENS_RADIUS_UM] = s[S_LENS_RADIUS_UM]! * factor
+  s[S_SAG_UM] = s[S_SAG_UM]! * factor
+  s[S_CURVATURE_PER_UM] = s[S_CURVATURE_PER_UM]! / factor
+  s[S_SOURCE_A_UM] = s[S_SOURCE_A_UM]! * factor
+  s[S_SOURCE_B_UM] = s[S_SOURCE_B_UM]! * factor
+  return s
+}

@@ -1,0 +1,388 @@
+// A ray's life in the stack, analog Monte Carlo (every decision is a random draw; no weights), frame z up, µm.
+//   launch (emitter layer at z = 0; down-going emission meets the reflector first)
+//   → emitter/substrate interface (TIR here: lost as waveguided)   → substrate, face to face (Beer–Lambert free
+//   path: lost as substrate)   → top face: lens base disc (into the cap) or flat land (into air)
+//   → cap surface (Snell / Fresnel / TIR, Hecht ch. 4) → air: neighbour caps and land below the cap tops are
+//   searched along the ray's horizontal path (see airSearch) → escape above the cap tops: tallied as extracted.
+// Reflector: absorbed with probability 1 − R (lost as reflector), else re-emitted cosine-weighted upward with
+// probability diffuseFraction, else mirrored. In the planar device with a specular reflector the lateral invariant
+// n·sinθ never changes, so a ray totally reflected at the top face can never escape: it ends at once as trapped.
+// More than maxEvents interface/reflector encounters: unresolved. Positions are wrapped to the nearest lattice site
+// whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
+import { createRngState, nextUniform, seedRay } from './rng'
+import { capHit, HEX_ROW_FACTOR } from './geometry'
+import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
+import {
+  FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
+  S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
+  S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
+  S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+} from './scene'
+import {
+  PHI_BINS, T_EVENTS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
+  T_WAVEGUIDED, THETA_BINS, type Tally,
+} from './tally'
+
+const MED_EMITTER = 0
+const MED_SUBSTRATE = 1
+const MED_LENS = 2
+const MED_AIR = 3
+
+const RAD_TO_THETA_BIN = 180 / Math.PI // 1° bins
+const RAD_TO_PHI_BIN = PHI_BINS / (2 * Math.PI)
+const TWO_PI = 2 * Math.PI
+/** Air search gives up (ray unresolved) after this many half-pitch steps: only grazing rays in sparse arrays. */
+const MAX_AIR_STEPS = 1 << 14
+
+const rng = createRngState()
+const v3 = new Float64Array(3)
+// Air search hit record: [tau, siteX, siteY].
+const hit = new Float64Array(3)
+const tested = new Int32Array(16)
+
+/** Ends of airSearch. */
+const AIR_ESCAPE = 0
+const AIR_CAP = 1
+const AIR_LAND = 2
+const AIR_LOST = 3
+
+/**
+ * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
+ * number of rays traced; `shouldStop` is polled every 4096 rays (an abort leaves a consistent partial tally).
+ */
+export function traceRange(
+  scene: PackedScene, firstRay: number, rayCount: number, seed: number, tally: Tally,
+  shouldStop?: () => boolean, streamId = 0,
+): number {
+  const hasLens = scene[S_HAS_LENS]! !== 0
+  const nE = scene[S_N_EMITTER]!, nS = scene[S_N_SUBSTRATE]!, nL = scene[S_N_LENS]!
+  const tUm = scene[S_THICKNESS_UM]!, alpha = scene[S_ABSORPTION_PER_UM]!
+  const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
+  const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
+  const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
+  const cv = scene[S_CURVATURE_PER_UM]!, k1 = scene[S_K1]!
+  const a2 = aUm * aUm, zv = tUm + hUm
+  const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
+  const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
+  const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
+  const maxEvents = scene[S_MAX_EVENTS]!
+  const specular = fd === 0 || rb === 0
+  const rowUm = pitch * HEX_ROW_FACTOR
+  const invPitch = 1 / pitch, invRow = 1 / rowUm
+
+  let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nEvents = 0
+  let done = 0
+  for (; done < rayCount; done++) {
+    if ((done & 4095) === 4095 && shouldStop !== undefined && shouldStop()) break
+    seedRay(rng, seed, streamId, firstRay + done)
+
+    // launch: position (always drawn, so streams line up between variants), then direction
+    const up1 = nextUniform(rng), up2 = nextUniform(rng)
+    if (source === SOURCE_EXTENDED) sampleCell(hex, pitch, up1, up2, v3)
+    else if (source === SOURCE_DISC) sampleDisc(srcA, up1, up2, v3)
+    else sampleRectangle(srcA, srcB, up1, up2, v3)
+    let x = v3[0]!, y = v3[1]!, z = 0
+    if (profile === PROFILE_ISOTROPIC) sampleIsotropic(nextUniform(rng), nextUniform(rng), v3)
+    else if (profile === PROFILE_LAMBERTIAN) sampleLambertian(nextUniform(rng), nextUniform(rng), v3)
+    else sampleTabulated(scene, S_TABLE, nextUniform(rng), nextUniform(rng), nextUniform(rng), v3)
+    let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
+    let med = MED_EMITTER
+    let onCap = false, excludeSelf = false
+    let events = 0
+    let end = -1 // tally slot the ray ends in
+
+    while (end < 0) {
+      if (++events > maxEvents) { end = T_UNRESOLVED; break }
+      switch (med) {
+        case MED_EMITTER: {
+          if (dz < 0) {
+            // reflector directly under the emitter
+            if (nextUniform(rng) >= rb) { end = T_REFLECTOR; break }
+            if (fd > 0 && nextUniform(rng) < fd) {
+              sampleLambertian(nextUniform(rng), nextUniform(rng), v3)
+              dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
+            } else dz = -dz
+            break
+          }
+          // emitter → substrate, normal +z, cosI = dz
+          const eta = nE / nS
+          const sin2T = eta * eta * (1 - dz * dz)
+          if (sin2T >= 1) { end = T_WAVEGUIDED; break }
+          const cosT = Math.sqrt(1 - sin2T)
+          if (!noFresnel && nE !== nS && nextUniform(rng) < fresnelR(dz, cosT, nE, nS)) { dz = -dz; break }
+          dx *= eta; dy *= eta; dz = cosT
+          med = MED_SUBSTRATE
+          break
+        }
+        case MED_SUBSTRATE: {
+          // always face to face: z is 0 or t on entry
+          const pathUm = dz > 0 ? tUm / dz : -tUm / dz
+          if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * pathUm) { end = T_SUBSTRATE; break }
+          if (dz < 0) {
+            // bottom face: substrate → emitter layer (then the reflector)
+            z = 0
+            if (hasLens) { x += dx * pathUm; y += dy * pathUm }
+            const cosI = -dz
+            const eta = nS / nE
+            const sin2T = eta * eta * (1 - cosI * cosI)
+            if (sin2T >= 1) { dz = cosI; break }
+            const cosT = Math.sqrt(1 - sin2T)
+            if (!noFresnel && nE !== nS && nextUniform(rng) < fresnelR(cosI, cosT, nS, nE)) { dz = cosI; break }
+            dx *= eta; dy *= eta; dz = -cosT
+            med = MED_EMITTER
+            break
+          }
+          z = tUm
+          if (hasLens) {
+            x += dx * pathUm; y += dy * pathUm
+            // wrap to the nearest site (inlined nearestSite)
+            let sx: number, sy: number
+            if (hex) {
+              const v = y * invRow, u = x * invPitch - 0.5 * v
+              const i0 = Math.floor(u), j0 = Math.floor(v)
+              const fu = u - i0, fv = v - j0
+              // containing equilateral triangle; its nearest vertex
+              let bi: number, bj: number
+              if (fu + fv < 1) {
+                // vertices (0,0), (1,0), (0,1)
+                const d00 = dist2Hex(fu, fv), d10 = dist2Hex(fu - 1, fv), d01 = dist2Hex(fu, fv - 1)
+                if (d00 <= d10 && d00 <= d01) { bi = i0; bj = j0 } else if (d10 <= d01) { bi = i0 + 1; bj = j0 } else { bi = i0; bj = j0 + 1 }
+              } else {
+                const d11 = dist2Hex(fu - 1, fv - 1), d10 = dist2Hex(fu - 1, fv), d01 = dist2Hex(fu, fv - 1)
+                if (d11 <= d10 && d11 <= d01) { bi = i0 + 1; bj = j0 + 1 } else if (d10 <= d01) { bi = i0 + 1; bj = j0 } else { bi = i0; bj = j0 + 1 }
+              }
+              sx = (bi + 0.5 * bj) * pitch; sy = bj * rowUm
+            } else {
+              sx = Math.round(x * invPitch) * pitch; sy = Math.round(y * invPitch) * pitch
+            }
+            x -= sx; y -= sy
+            if (x * x + y * y < a2) {
+              // lens base: substrate → lens material
+              if (nL !== nS) {
+                const eta = nS / nL
+                const sin2T = eta * eta * (1 - dz * dz)
+                if (sin2T >= 1) { dz = -dz; break }
+                const cosT = Math.sqrt(1 - sin2T)
+                if (!noFresnel && nextUniform(rng) < fresnelR(dz, cosT, nS, nL)) { dz = -dz; break }
+                dx *= eta; dy *= eta; dz = cosT
+              }
+              med = MED_LENS
+              onCap = false
+              break
+            }
+          }
+          // flat land: substrate → air
+          {
+            const eta = nS
+            const sin2T = eta * eta * (1 - dz * dz)
+            if (sin2T >= 1) {
+              if (!hasLens && specular) { end = T_TRAPPED; break }
+              dz = -dz
+              break
+            }
+            const cosT = Math.sqrt(1 - sin2T)
+            if (!noFresnel && nextUniform(rng) < fresnelR(dz, cosT, nS, 1)) { dz = -dz; break }
+            dx *= eta; dy *= eta; dz = cosT
+            if (!hasLens) { end = T_EXTRACTED; break }
+            med = MED_AIR
+            excludeSelf = false
+          }
+          break
+        }
+        case MED_LENS: {
+          const tS = capHit(x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
+          const tB = dz < 0 ? (tUm - z) / dz : Infinity
+          if (tS > 0 && tS < tB) {
+            if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * tS) { end = T_SUBSTRATE; break }
+            x += dx * tS; y += dy * tS; z += dz * tS
+            // outward normal (see geometry.ts)
+            let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+            const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
+            nx *= inv; ny *= inv; nz *= inv
+            const cosI = dx * nx + dy * ny + dz * nz
+            const eta = nL
+            const sin2T = eta * eta * (1 - cosI * cosI)
+            if (sin2T >= 1 || (!noFresnel && nextUniform(rng) < fresnelR(cosI, Math.sqrt(1 - sin2T), nL, 1))) {
+              dx -= 2 * cosI * nx; dy -= 2 * cosI * ny; dz -= 2 * cosI * nz
+              onCap = true
+              break
+            }
+            const cosT = Math.sqrt(1 - sin2T)
+            const g = cosT - eta * cosI
+            dx = eta * dx + g * nx; dy = eta * dy + g * ny; dz = eta * dz + g * nz
+            med = MED_AIR
+            excludeSelf = true
+            break
+          }
+          if (tB === Infinity) { end = T_UNRESOLVED; break } // no exit found (numerically degenerate ray)
+          if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * tB) { end = T_SUBSTRATE; break }
+          x += dx * tB; y += dy * tB; z = tUm
+          if (nL !== nS) {
+            const cosI = -dz
+            const eta = nL / nS
+            const sin2T = eta * eta * (1 - cosI * cosI)
+            if (sin2T >= 1) { dz = cosI; onCap = false; break }
+            const cosT = Math.sqrt(1 - sin2T)
+            if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, nL, nS)) { dz = cosI; onCap = false; break }
+            dx *= eta; dy *= eta; dz = -cosT
+          }
+          med = MED_SUBSTRATE
+          break
+        }
+        default: {
+          // MED_AIR, below the cap tops
+          const kind = airSearch(x, y, z, dx, dy, dz, excludeSelf, hex, pitch, aUm, hUm, tUm, cv, k1)
+          if (kind === AIR_ESCAPE) { end = T_EXTRACTED; break }
+          if (kind === AIR_LOST) { end = T_UNRESOLVED; break }
+          const tau = hit[0]!
+          x += dx * tau; y += dy * tau; z += dz * tau
+          if (kind === AIR_LAND) {
+            z = tUm
+            const cosI = -dz
+            const eta = 1 / nS
+            const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
+            if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, 1, nS)) { dz = cosI; excludeSelf = false; break }
+            dx *= eta; dy *= eta; dz = -cosT
+            med = MED_SUBSTRATE
+            break
+          }
+          // a cap: move the origin to its site
+          x -= hit[1]!; y -= hit[2]!
+          let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+          const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
+          nx *= inv; ny *= inv; nz *= inv
+          const cosI = -(dx * nx + dy * ny + dz * nz)
+          const eta = 1 / nL
+          const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
+          if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, 1, nL)) {
+            dx += 2 * cosI * nx; dy += 2 * cosI * ny; dz += 2 * cosI * nz
+            excludeSelf = true // a convex cap cannot be met twice by a straight ray
+            break
+          }
+          const g = eta * cosI - cosT
+          dx = eta * dx + g * nx; dy = eta * dy + g * ny; dz = eta * dz + g * nz
+          med = MED_LENS
+          onCap = true
+          break
+        }
+      }
+    }
+    nEvents += events
+    switch (end) {
+      case T_EXTRACTED: {
+        nExt++
+        const th = Math.acos(dz > 1 ? 1 : dz)
+        let bt = (th * RAD_TO_THETA_BIN) | 0
+        if (bt >= THETA_BINS) bt = THETA_BINS - 1
+        let ph = Math.atan2(dy, dx)
+        if (ph < 0) ph += TWO_PI
+        let bp = (ph * RAD_TO_PHI_BIN) | 0
+        if (bp >= PHI_BINS) bp = PHI_BINS - 1
+        tally[T_THETA + bt]++
+        tally[T_MAP + bt * PHI_BINS + bp]++
+        break
+      }
+      case T_REFLECTOR: nRefl++; break
+      case T_SUBSTRATE: nSub++; break
+      case T_WAVEGUIDED: nWg++; break
+      case T_TRAPPED: nTrap++; break
+      default: nUnres++; break
+    }
+  }
+  tally[T_RAYS] = tally[T_RAYS]! + done
+  tally[T_EXTRACTED] = tally[T_EXTRACTED]! + nExt
+  tally[T_REFLECTOR] = tally[T_REFLECTOR]! + nRefl
+  tally[T_SUBSTRATE] = tally[T_SUBSTRATE]! + nSub
+  tally[T_WAVEGUIDED] = tally[T_WAVEGUIDED]! + nWg
+  tally[T_TRAPPED] = tally[T_TRAPPED]! + nTrap
+  tally[T_UNRESOLVED] = tally[T_UNRESOLVED]! + nUnres
+  tally[T_EVENTS] = tally[T_EVENTS]! + nEvents
+  return done
+}
+
+/** Averaged Fresnel power reflectance (Rs + Rp)/2 from both cosines (interfaces.ts, inlined here). */
+function fresnelR(cosI: number, cosT: number, n1: number, n2: number): number {
+  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
+  const rs = (a - b) / (a + b)
+  const rp = (c - d) / (c + d)
+  return 0.5 * (rs * rs + rp * rp)
+}
+
+/** Squared distance in units of p² of a hexagonal-lattice offset given in lattice coordinates (du, dv). */
+function dist2Hex(du: number, dv: number): number {
+  const ex = du + 0.5 * dv, ey = dv * HEX_ROW_FACTOR
+  return ex * ex + ey * ey
+}
+
+/**
+ * Follows a ray in air below the cap tops (t ≤ z ≤ t + h) and finds what it meets first: a cap (hit = [τ, sx, sy]),
+ * the flat land (hit[0] = τ) or nothing (escape). Coordinates are relative to the current site (the origin), whose
+ * cap is skipped when `excludeSelf` (the ray has just left or bounced off it).
+ * Search: sample the horizontal path every δ = p/2; at each sample test the sites of the containing lattice
+ * triangle (hexagonal) or square that lie within R = √(a² + δ²/4): any cap the path crosses has its site within a
+ * of the path, hence within R of the nearest sample, and every site within R < p/√3 of a point is a vertex of the
+ * point's triangle/square (a ≤ p/2). A hit at horizontal distance s* is final once the samples pass s* + a + δ/2
+ * (no untested cap can be met before that).
+ */
+function airSearch(x: number, y: number, z: number, dx: number, dy: number, dz: number, excludeSelf: boolean,
+  hex: boolean, pitch: number, aUm: number, hUm: number, tUm: number, cv: number, k1: number): number {
+  const zTop = tUm + hUm
+  if (dz >= 0 && z >= zTop) return AIR_ESCAPE
+  const tz = dz > 0 ? (zTop - z) / dz : dz < 0 ? (tUm - z) / dz : Infinity
+  const hs = Math.sqrt(dx * dx + dy * dy)
+  const step = 0.5 * pitch
+  let lh = hs * tz
+  if (!(hs > 0)) lh = 0
+  let truncated = false
+  if (!(lh <= MAX_AIR_STEPS * step)) { lh = MAX_AIR_STEPS * step; truncated = true }
+  const r2 = aUm * aUm + 0.25 * step * step
+  const margin = aUm + 0.5 * step
+  const rowUm = pitch * HEX_ROW_FACTOR
+  const invHs = hs > 0 ? 1 / hs : 0
+  let best = Infinity, bsx = 0, bsy = 0
+  let nTested = 0
+  for (let k = 0; ; k++) {
+    let s = k * step
+    if (s > lh) s = lh
+    const tk = s * invHs
+    const px = x + dx * tk, py = y + dy * tk
+    let i0: number, j0: number, upper = false
+    if (hex) {
+      const v = py / rowUm, u = px / pitch - 0.5 * v
+      i0 = Math.floor(u); j0 = Math.floor(v)
+      upper = u - i0 + (v - j0) >= 1
+    } else {
+      i0 = Math.floor(px / pitch); j0 = Math.floor(py / pitch)
+    }
+    const nv = hex ? 3 : 4
+    for (let m = 0; m < nv; m++) {
+      let i: number, j: number
+      if (hex) {
+        if (upper) { i = m === 1 ? i0 : i0 + 1; j = m === 2 ? j0 : j0 + 1 } // (1,1) (0,1) (1,0)
+        else { i = m === 1 ? i0 + 1 : i0; j = m === 2 ? j0 + 1 : j0 } // (0,0) (1,0) (0,1)
+      } else { i = i0 + (m & 1); j = j0 + (m >> 1) }
+      if (excludeSelf && i === 0 && j === 0) continue
+      const sx = hex ? (i + 0.5 * j) * pitch : i * pitch
+      const sy = hex ? j * rowUm : j * pitch
+      const ex = px - sx, ey = py - sy
+      if (ex * ex + ey * ey > r2) continue
+      // each site once per search (a ring of the last 8 tested is enough: a site stays within R for ≤ 4 samples)
+      let seen = false
+      const lim = nTested < 8 ? nTested : 8
+      for (let q = 0; q < lim; q++) if (tested[2 * q] === i && tested[2 * q + 1] === j) { seen = true; break }
+      if (seen) continue
+      const slot = nTested & 7
+      tested[2 * slot] = i; tested[2 * slot + 1] = j
+      nTested++
+      const tau = capHit(x - sx, y - sy, z, dx, dy, dz, zTop, cv, k1, hUm, false)
+      if (tau > 0 && tau < best) { best = tau; bsx = sx; bsy = sy }
+    }
+    if (best < Infinity && s > best * hs + margin) break
+    if (s >= lh) break
+  }
+  if (best < Infinity) { hit[0] = best; hit[1] = bsx; hit[2] = bsy; return AIR_CAP }
+  if (truncated) return AIR_LOST
+  if (dz > 0) return AIR_ESCAPE
+  hit[0] = tz
+  return AIR_LAND
+}
