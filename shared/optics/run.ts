@@ -8,7 +8,7 @@ import type { Losses, TraceResult } from '../types/result'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
-  createTally, mergeTally, PHI_BINS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  createTally, mergeTally, PHI_BINS, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -174,4 +174,18 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
     enhancement: enh,
     enhancementStdErr: enhErr,
   }
+}
+
+/** One ArrayBuffer (transferable) holding the device tally, then the planar companion's when there is one. */
+export function runTalliesToBuffer(t: RunTallies): ArrayBuffer {
+  const all = new Float64Array(t.planar ? 2 * TALLY_LENGTH : TALLY_LENGTH)
+  all.set(t.device, 0)
+  if (t.planar) all.set(t.planar, TALLY_LENGTH)
+  return all.buffer
+}
+
+export function runTalliesFromBuffer(buf: ArrayBuffer | ArrayBufferLike): RunTallies {
+  const all = new Float64Array(buf)
+  if (all.length !== TALLY_LENGTH && all.length !== 2 * TALLY_LENGTH) throw new Error(`run buffer has ${all.length} numbers, expected ${TALLY_LENGTH} or ${2 * TALLY_LENGTH}`)
+  return { device: all.subarray(0, TALLY_LENGTH), planar: all.length === 2 * TALLY_LENGTH ? all.subarray(TALLY_LENGTH) : null }
 }

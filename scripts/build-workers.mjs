@@ -1,0 +1,18 @@
+// Bundles the piscina task entry workers/trace.ts (and the shared core it imports) into dist/workers/trace.mjs,
+// a plain ES module that node can load as a worker without a TypeScript loader. piscina stays external.
+import { build } from 'esbuild'
+import { fileURLToPath } from 'node:url'
+
+const root = fileURLToPath(new URL('..', import.meta.url))
+await build({
+  entryPoints: [`${root}workers/trace.ts`],
+  outfile: `${root}dist/workers/trace.mjs`,
+  bundle: true,
+  platform: 'node',
+  format: 'esm',
+  target: 'node20',
+  external: ['piscina'],
+  sourcemap: true,
+  logLevel: 'warning',
+})
+console.log('built dist/workers/trace.mjs')

@@ -1,0 +1,41 @@
+// Piscina task entry: unpack a task (a scenario or already packed scenes, a ray range and a seed), call the core,
+// return one transferable ArrayBuffer holding both tallies (read it with runTalliesFromBuffer from shared/optics).
+// Stays thin; the physics lives in shared/optics.
+// Abort: pass `abortFlag` (a SharedArrayBuffer of one Int32); when another thread stores a non-zero value, the
+// task stops at the next 4096-ray boundary and returns a partial tally (tally[T_RAYS] < rayCount). Piscina's own
+// AbortSignal (run(task, { signal })) ends a task from outside as well.
+import { move } from 'piscina'
+import { scenarioSchema } from '../shared/types/scenario'
+import { prepareRun, type RunScenes, runTalliesToBuffer, traceChunk } from '../shared/optics'
+
+export interface TraceTask {
+  /** A scenario (validated here with the shared schema) ... */
+  scenario?: unknown
+  /** ... or the packed scenes (from prepareRun). */
+  scenes?: { device: Float64Array; planar: Float64Array | null }
+  firstRay: number
+  rayCount: number
+  seed: number
+  abortFlag?: SharedArrayBuffer
+}
+
+let cachedKey = ''
+let cachedRun: RunScenes | null = null
+
+function runFor(task: TraceTask): RunScenes {
+  if (task.scenes) return task.scenes
+  const key = JSON.stringify(task.scenario)
+  if (key !== cachedKey || !cachedRun) {
+    cachedRun = prepareRun(scenarioSchema.parse(task.scenario))
+    cachedKey = key
+  }
+  return cachedRun
+}
+
+export default function traceTask(task: TraceTask): ArrayBuffer {
+  const run = runFor(task)
+  const flag = task.abortFlag ? new Int32Array(task.abortFlag) : null
+  const shouldStop = flag ? () => Atomics.load(flag, 0) !== 0 : undefined
+  const t = traceChunk(run, task.firstRay, task.rayCount, task.seed, shouldStop)
+  return move(runTalliesToBuffer(t)) as unknown as ArrayBuffer
+}
