@@ -16,6 +16,8 @@ export default defineConfig({
           name: 'api',
           include: ['tests/api/**/*.test.ts'],
           environment: 'node',
+          // Starts the built server against the throwaway database that `npm test` prepared.
+          globalSetup: ['tests/api/global-setup.ts'],
           testTimeout: 120_000,
           hookTimeout: 300_000,
           fileParallelism: false,

@@ -1,0 +1,57 @@
+// Global setup of the `api` project: starts the built server (node .output/server/index.mjs) on a free port
+// against DATABASE_URL (a throwaway, migrated database prepared by `npm test`), and stops it afterwards.
+import { spawn } from 'node:child_process'
+import { createWriteStream, existsSync, mkdirSync, readFileSync } from 'node:fs'
+import { join } from 'node:path'
+import type { TestProject } from 'vitest/node'
+import { freePort, repoRoot } from '../../scripts/postgres'
+import { waitForHttp } from '../../scripts/run'
+
+declare module 'vitest' {
+  export interface ProvidedContext {
+    baseUrl: string
+    databaseUrl: string
+    adminUrl: string
+  }
+}
+
+export default async function setup(project: TestProject) {
+  const databaseUrl = process.env.DATABASE_URL
+  const adminUrl = process.env.LENSFIELD_PG_ADMIN_URL
+  if (!databaseUrl || !adminUrl) {
+    throw new Error('The api tests need a database: run them with `npm test` (it starts PostgreSQL and builds the app).')
+  }
+  const entry = join(repoRoot, '.output', 'server', 'index.mjs')
+  if (!existsSync(entry)) throw new Error('No production build in .output/: run `npm test` (it runs `nuxt build` first).')
+
+  const port = await freePort()
+  const logDir = join(repoRoot, 'test-output')
+  mkdirSync(logDir, { recursive: true })
+  const logFile = join(logDir, 'api-server.log')
+  const log = createWriteStream(logFile)
+  const server = spawn(process.execPath, [entry], {
+    cwd: repoRoot,
+    env: { ...process.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production' },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  })
+  server.stdout.pipe(log)
+  server.stderr.pipe(log)
+  const baseUrl = `http://127.0.0.1:${port}`
+  try {
+    await waitForHttp(`${baseUrl}/api/health`, 30_000)
+  } catch (err) {
+    server.kill('SIGKILL')
+    throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`)
+  }
+  project.provide('baseUrl', baseUrl)
+  project.provide('databaseUrl', databaseUrl)
+  project.provide('adminUrl', adminUrl)
+
+  return async () => {
+    if (server.exitCode !== null) return
+    const exited = new Promise((r) => server.once('exit', r))
+    server.kill('SIGTERM')
+    await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))])
+    if (server.exitCode === null) server.kill('SIGKILL')
+  }
+}
