@@ -70,16 +70,29 @@ function findBinDir(): string | null {
   return majors.length ? join(base, majors[0]!, 'bin') : null
 }
 
+function ensureServerUser() {
+  if (!isRoot || spawnSync('id', ['-u', SERVER_USER]).status === 0) return
+  // The Debian package creates this user; binaries copied by other means may come without it.
+  log(`creating system user "${SERVER_USER}" to run the server (PostgreSQL refuses to run as root)`)
+  execFileSync('useradd', ['--system', '--no-create-home', '--shell', '/usr/sbin/nologin', SERVER_USER], { stdio: 'inherit' })
+}
+
 function ensureBinDir(): string {
   let bin = findBinDir()
-  if (bin) return bin
+  if (bin) {
+    ensureServerUser()
+    return bin
+  }
   if (isRoot) {
     log('PostgreSQL server binaries not found; installing Debian package "postgresql" (apt-get)…')
     const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' }
     execFileSync('apt-get', ['update'], { stdio: 'inherit', env })
     execFileSync('apt-get', ['install', '-y', '--no-install-recommends', 'postgresql'], { stdio: 'inherit', env })
     bin = findBinDir()
-    if (bin) return bin
+    if (bin) {
+      ensureServerUser()
+      return bin
+    }
   }
   throw new Error(
     'PostgreSQL server binaries were not found in /usr/lib/postgresql/*/bin.\n'
