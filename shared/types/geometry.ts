@@ -4,7 +4,8 @@
 // Spherical cap of base diameter D (r = D/2) and sag h: Rc = (r² + h²)/(2h), h = Rc − √(Rc² − r²), contact angle
 // 2·atan(h/r). Fill factor of circular bases with D ≤ p: hexagonal π/(2√3)·(D/p)², square π/4·(D/p)².
 // Conic cap z_sag(ρ) = cρ²/(1 + √(1 − (1+k)c²ρ²)); requiring sag(a) = h, a = D/2, gives (from the implicit form
-// cρ² − 2s + (1+k)c·s² = 0 at ρ = a, s = h) c = 2h/(a² + (1+k)h²); the cap lies on the lower branch iff (1+k)h² ≤ a².
+// cρ² − 2s + (1+k)c·s² = 0 at ρ = a, s = h) c = 2h/(a² + (1+k)h²); the cap lies on the lower branch iff (1+k)h² ≤ a²
+// (k > −1), and c stays finite iff a² + (1+k)h² > 0, i.e. h < a/√(−1−k) for a hyperboloid (k < −1).
 
 export type LatticeKind = 'hexagonal' | 'square'
 
@@ -17,9 +18,10 @@ export function radiusOfCurvatureUm(diameterUm: number, sagUm: number): number {
 /** Sag of a spherical cap of base diameter D cut from a sphere of radius Rc ≥ D/2 (the smaller cap). */
 export function sagFromRadiusUm(diameterUm: number, radiusOfCurvatureUm: number): number {
   const r = diameterUm / 2
-  if (radiusOfCurvatureUm < r) return NaN
+  // a relative 1e-12 below r is rounding of a hemisphere's Rc = r, not a smaller sphere
+  if (radiusOfCurvatureUm < r * (1 - 1e-12)) return NaN
   // r²/(Rc + √(Rc² − r²)) equals Rc − √(Rc² − r²) without cancellation for flat caps.
-  return (r * r) / (radiusOfCurvatureUm + Math.sqrt(radiusOfCurvatureUm * radiusOfCurvatureUm - r * r))
+  return (r * r) / (radiusOfCurvatureUm + Math.sqrt(Math.max(0, radiusOfCurvatureUm * radiusOfCurvatureUm - r * r)))
 }
 
 /** Base diameter of a spherical cap of radius Rc and sag h (h ≤ Rc). */
@@ -73,4 +75,12 @@ export function conicSagUm(rhoUm: number, curvaturePerUm: number, conicConstant:
 /** Conic constant of a named shape (spherical 0, parabolic −1). */
 export function shapeConicConstant(shape: 'spherical' | 'parabolic' | 'conic', conicConstant?: number): number {
   return shape === 'spherical' ? 0 : shape === 'parabolic' ? -1 : (conicConstant ?? 0)
+}
+
+/** Largest sag (µm) a conic cap of base diameter D may have: a/√(1+k) for k > −1, a/√(−1−k) (exclusive) for k < −1, ∞ for k = −1. */
+export function maxConicSagUm(diameterUm: number, conicConstant: number): number {
+  const a = diameterUm / 2
+  if (conicConstant > -1) return a / Math.sqrt(1 + conicConstant)
+  if (conicConstant < -1) return a / Math.sqrt(-1 - conicConstant)
+  return Infinity
 }

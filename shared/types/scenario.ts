@@ -82,6 +82,12 @@ export const lensArraySchema = z
         if (l.sagUm > maxSag) {
           ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2/√(1+conicConstant) for this conic cap: got ${l.sagUm}, max ${round4(maxSag)}` })
         }
+      } else if (l.conicConstant < -1) {
+        // Finite vertex curvature needs a² + (1+k)h² > 0; keep 0.1 % away from the cone limit.
+        const maxSag = 0.999 * a / Math.sqrt(-1 - l.conicConstant)
+        if (l.sagUm > maxSag) {
+          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most 0.999·diameterUm/2/√(−1−conicConstant) for this hyperboloid cap: got ${l.sagUm}, max ${round4(maxSag)}` })
+        }
       }
     }
   })

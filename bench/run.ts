@@ -1,0 +1,49 @@
+// npm run bench: rays/s on the named reference scenarios, in-process on one thread and on the piscina pool at 1
+// thread and at all threads. "rays/s" counts device rays; each includes tracing its planar companion ray (the
+// enhancement's reference), exactly as a real run does. Figures depend on machine load: re-run when quiet.
+// Usage: npm run bench -- [--rays N] [name ...]
+import { availableParallelism, cpus } from 'node:os'
+import { scenarioSchema } from '../shared/types/scenario'
+import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
+import { createTracePool, traceOnPool } from '../scripts/trace-pool'
+import { benchScenarios } from './scenarios'
+
+const argv = process.argv.slice(2)
+let rays = 2_000_000
+const names: string[] = []
+for (let i = 0; i < argv.length; i++) {
+  if (argv[i] === '--rays') rays = Number(argv[++i])
+  else names.push(argv[i]!)
+}
+const selected = names.length ? names : Object.keys(benchScenarios)
+const all = Math.max(1, availableParallelism())
+
+function fmt(n: number): string {
+  return Math.round(n).toLocaleString('en-US').padStart(11)
+}
+
+console.log(`Lensfield bench ${new Date().toISOString().slice(0, 10)} — ${cpus()[0]?.model ?? 'cpu'} × ${all}, node ${process.version}, ${rays} rays per figure`)
+const pools = new Map<number, ReturnType<typeof createTracePool>>()
+for (const t of new Set([1, all])) pools.set(t, createTracePool(t))
+for (const name of selected) {
+  const input = benchScenarios[name]
+  if (!input) { console.error(`unknown scenario ${name}`); process.exit(2) }
+  const sc = scenarioSchema.parse(input)
+  const run = prepareRun(sc)
+  // in-process, one thread (after a warm-up so the JIT has settled)
+  traceChunk(run, 0, 50_000, 99)
+  const t0 = performance.now()
+  const total = { device: createTally(), planar: run.planar ? createTally() : null }
+  for (const [f, c] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, f, c, 1))
+  const inProc = rays / ((performance.now() - t0) / 1000)
+  const poolRate: number[] = []
+  for (const t of [1, all]) {
+    const pool = pools.get(t)!
+    await traceOnPool(sc, { rays: 100_000 * t, seed: 98, threads: t, pool }) // warm-up every worker
+    const t1 = performance.now()
+    await traceOnPool(sc, { rays, seed: 1, threads: t, pool })
+    poolRate.push(rays / ((performance.now() - t1) / 1000))
+  }
+  console.log(`${name.padEnd(30)} in-process 1 thread ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
+}
+for (const p of pools.values()) await p.destroy()

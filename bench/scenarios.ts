@@ -1,0 +1,25 @@
+// Named reference scenarios for the bench (and the profile script).
+import type { ScenarioInput } from '../shared/types/scenario'
+
+const stack = {
+  emitter: { index: 1.7, angularProfile: 'isotropic' as const, source: { shape: 'extended' as const } },
+  reflector: { reflectance: 0.8, diffuseFraction: 0 },
+  substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
+}
+
+export const benchScenarios: Record<string, ScenarioInput> = {
+  // The example: close-packed hexagonal hemispheres (target ≥ 600 000 rays/s on one thread).
+  'hex-hemisphere-close-packed': { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 } },
+  'planar': { ...stack, lensArray: null },
+  'square-parabolic-absorbing': {
+    ...stack,
+    substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0.5 },
+    lensArray: { lattice: 'square', pitchUm: 20, diameterUm: 18, sagUm: 6, shape: 'parabolic' },
+  },
+  'hex-sparse-diffuse-disc': {
+    emitter: { index: 1.8, angularProfile: 'lambertian', source: { shape: 'disc', radiusUm: 30 } },
+    reflector: { reflectance: 0.9, diffuseFraction: 0.3 },
+    substrate: { index: 1.5, thicknessUm: 50, absorptionPerMm: 0 },
+    lensArray: { lattice: 'hexagonal', pitchUm: 30, diameterUm: 20, sagUm: 4, shape: 'spherical', index: 1.6 },
+  },
+}
