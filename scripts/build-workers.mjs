@@ -4,9 +4,12 @@ import { build } from 'esbuild'
 import { fileURLToPath } from 'node:url'
 
 const root = fileURLToPath(new URL('..', import.meta.url))
-await build({
+
+/** Bundles the worker into `outfile` (default dist/workers/trace.mjs). */
+export async function buildTraceWorker(outfile = `${root}dist/workers/trace.mjs`) {
+  await build({
   entryPoints: [`${root}workers/trace.ts`],
-  outfile: `${root}dist/workers/trace.mjs`,
+  outfile,
   bundle: true,
   platform: 'node',
   format: 'esm',
@@ -14,5 +17,10 @@ await build({
   external: ['piscina'],
   sourcemap: true,
   logLevel: 'warning',
-})
-console.log('built dist/workers/trace.mjs')
+  })
+  return outfile
+}
+
+if (process.argv[1] && fileURLToPath(import.meta.url) === process.argv[1]) {
+  console.log(`built ${await buildTraceWorker()}`)
+}

@@ -13,12 +13,14 @@ const root = fileURLToPath(new URL('..', import.meta.url))
 /**
  * The worker file. Running from TypeScript sources (under tsx, vitest), the TypeScript entry is used: worker
  * threads inherit tsx's loader through execArgv, and it can never be stale. Compiled consumers use the bundle
- * dist/workers/trace.mjs (node scripts/build-workers.mjs). LENSFIELD_WORKER=ts|dist forces one.
+ * dist/workers/trace.mjs (node scripts/build-workers.mjs). LENSFIELD_WORKER=ts|dist|<path to a .mjs> forces one
+ * (vitest cannot give workers a TypeScript loader, so the tests bundle a copy and point here).
  */
 export function workerFilename(): string {
   const forced = process.env.LENSFIELD_WORKER
   const built = `${root}dist/workers/trace.mjs`
   if (forced === 'dist') return built
+  if (forced && forced !== 'ts') return forced // an explicit path to a compiled worker
   if (forced === 'ts' || import.meta.url.endsWith('.ts') || !existsSync(built)) return `${root}workers/trace.ts`
   return built
 }
