@@ -44,6 +44,9 @@ export function nearestSite(hexagonal: boolean, pitchUm: number, x: number, y: n
  */
 export function capHit(px: number, py: number, pz: number, dx: number, dy: number, dz: number,
   zvUm: number, cPerUm: number, k1: number, sagUm: number, onSurface: boolean): number {
+  // s may overshoot [0, h] by rounding at the rim or vertex: 1e-9·h is far above double rounding of s (~1e-16·h)
+  // and far below any feature size (a hit 1e-9·h below the rim is on the land to within that).
+  const sLo = -1e-9 * sagUm, sHi = sagUm * (1 + 1e-9)
   const s0 = zvUm - pz
   const A = cPerUm * (dx * dx + dy * dy) + k1 * cPerUm * dz * dz
   const B = 2 * cPerUm * (px * dx + py * dy) + 2 * dz - 2 * k1 * cPerUm * s0 * dz
@@ -52,7 +55,7 @@ export function capHit(px: number, py: number, pz: number, dx: number, dy: numbe
     const tau = -B / A
     if (!(tau > 0)) return -1
     const s = s0 - tau * dz
-    return s >= 0 && s <= sagUm ? tau : -1
+    return s >= sLo && s <= sHi ? tau : -1
   }
   const C = cPerUm * (px * px + py * py) - 2 * s0 + k1 * cPerUm * s0 * s0
   const disc = B * B - 4 * A * C
@@ -62,11 +65,11 @@ export function capHit(px: number, py: number, pz: number, dx: number, dy: numbe
   if (t1 > t2) { const tmp = t1; t1 = t2; t2 = tmp }
   if (t1 > 0) {
     const s = s0 - t1 * dz
-    if (s >= 0 && s <= sagUm) return t1
+    if (s >= sLo && s <= sHi) return t1
   }
   if (t2 > 0) {
     const s = s0 - t2 * dz
-    if (s >= 0 && s <= sagUm) return t2
+    if (s >= sLo && s <= sHi) return t2
   }
   return -1
 }

@@ -41,10 +41,22 @@ const hit = new Float64Array(3)
 const tested = new Int32Array(16)
 
 /** Ends of airSearch. */
-const AIR_ESCAPE = 0
-const AIR_CAP = 1
-const AIR_LAND = 2
-const AIR_LOST = 3
+export const AIR_ESCAPE = 0
+export const AIR_CAP = 1
+export const AIR_LAND = 2
+export const AIR_LOST = 3
+
+/**
+ * Test access to the air search: returns the end kind and writes [τ, siteX, siteY] into `out` (τ for a cap or the
+ * land). Geometry arguments as in the packed scene (µm; c in 1/µm; k1 = 1 + conic constant).
+ */
+export function findAirHit(x: number, y: number, z: number, dx: number, dy: number, dz: number, excludeSelf: boolean,
+  hexagonal: boolean, pitchUm: number, lensRadiusUm: number, sagUm: number, thicknessUm: number, cPerUm: number, k1: number,
+  out: Float64Array): number {
+  const kind = airSearch(x, y, z, dx, dy, dz, excludeSelf, hexagonal, pitchUm, lensRadiusUm, sagUm, thicknessUm, cPerUm, k1)
+  out[0] = hit[0]!; out[1] = hit[1]!; out[2] = hit[2]!
+  return kind
+}
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
