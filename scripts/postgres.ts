@@ -275,6 +275,16 @@ export function stopOnExit(cleanup: () => void) {
       process.exit(code)
     })
   }
+  // `npm start` does not always pass a SIGTERM on to its script: when the npm (or tsx) process above us goes
+  // away without a signal reaching us, notice it and clean up instead of leaving orphans behind.
+  const watched = ancestorPids(2)
+  const watchdog = setInterval(() => {
+    if (watched.some((pid) => !isAlive(pid))) {
+      once()
+      process.exit(129)
+    }
+  }, 1000)
+  watchdog.unref()
   process.on('uncaughtException', (err) => {
     console.error(err)
     once()
@@ -285,4 +295,35 @@ export function stopOnExit(cleanup: () => void) {
     once()
     process.exit(1)
   })
+}
+
+function parentOf(pid: number): number | null {
+  try {
+    // /proc/<pid>/stat: "pid (comm) state ppid ..."; comm may contain spaces, so split after the last ')'.
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8')
+    const ppid = Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1])
+    return Number.isFinite(ppid) ? ppid : null
+  } catch {
+    return null
+  }
+}
+
+/** Up to `levels` ancestors of this process (parent first), stopping before pid 1. */
+function ancestorPids(levels: number): number[] {
+  const out: number[] = []
+  let pid: number | null = process.ppid
+  while (pid && pid > 1 && out.length < levels) {
+    out.push(pid)
+    pid = parentOf(pid)
+  }
+  return out
+}
+
+function isAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0)
+    return true
+  } catch (err) {
+    return (err as NodeJS.ErrnoException).code === 'EPERM'
+  }
 }
