@@ -7,6 +7,11 @@ import { scenarioSchema } from '../shared/types/scenario'
 import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
 import { createTracePool, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
+// @ts-expect-error plain .mjs build script without types
+import { buildTraceWorker } from '../scripts/build-workers.mjs'
+
+// The pool runs the bundled worker, as production does (fresh from the current sources).
+process.env.LENSFIELD_WORKER = await buildTraceWorker()
 
 const argv = process.argv.slice(2)
 let rays = 2_000_000

@@ -79,8 +79,8 @@ export function traceRange(
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
   const maxEvents = scene[S_MAX_EVENTS]!
   const specular = fd === 0 || rb === 0
-  const rowUm = pitch * HEX_ROW_FACTOR
-  const invPitch = 1 / pitch, invRow = 1 / rowUm
+  const row2Um = 2 * pitch * HEX_ROW_FACTOR // p√3
+  const invPitch = 1 / pitch, invRow2 = 1 / row2Um
 
   let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nEvents = 0
   let done = 0
@@ -147,23 +147,15 @@ export function traceRange(
           z = tUm
           if (hasLens) {
             x += dx * pathUm; y += dy * pathUm
-            // wrap to the nearest site (inlined nearestSite)
+            // wrap to the nearest site (inlined nearestSite). The hexagonal lattice is the union of two
+            // rectangular lattices p × p√3 (offset by (p/2, p√3/2)): the nearer of their two nearest sites.
             let sx: number, sy: number
             if (hex) {
-              const v = y * invRow, u = x * invPitch - 0.5 * v
-              const i0 = Math.floor(u), j0 = Math.floor(v)
-              const fu = u - i0, fv = v - j0
-              // containing equilateral triangle; its nearest vertex
-              let bi: number, bj: number
-              if (fu + fv < 1) {
-                // vertices (0,0), (1,0), (0,1)
-                const d00 = dist2Hex(fu, fv), d10 = dist2Hex(fu - 1, fv), d01 = dist2Hex(fu, fv - 1)
-                if (d00 <= d10 && d00 <= d01) { bi = i0; bj = j0 } else if (d10 <= d01) { bi = i0 + 1; bj = j0 } else { bi = i0; bj = j0 + 1 }
-              } else {
-                const d11 = dist2Hex(fu - 1, fv - 1), d10 = dist2Hex(fu - 1, fv), d01 = dist2Hex(fu, fv - 1)
-                if (d11 <= d10 && d11 <= d01) { bi = i0 + 1; bj = j0 + 1 } else if (d10 <= d01) { bi = i0 + 1; bj = j0 } else { bi = i0; bj = j0 + 1 }
-              }
-              sx = (bi + 0.5 * bj) * pitch; sy = bj * rowUm
+              const u = x * invPitch, v = y * invRow2
+              const ax = Math.round(u), ay = Math.round(v)
+              const bx = Math.round(u - 0.5) + 0.5, by = Math.round(v - 0.5) + 0.5
+              const ex = (u - ax) * pitch, ey = (v - ay) * row2Um, fx = (u - bx) * pitch, fy = (v - by) * row2Um
+              if (ex * ex + ey * ey <= fx * fx + fy * fy) { sx = ax * pitch; sy = ay * row2Um } else { sx = bx * pitch; sy = by * row2Um }
             } else {
               sx = Math.round(x * invPitch) * pitch; sy = Math.round(y * invPitch) * pitch
             }
@@ -320,12 +312,6 @@ function fresnelR(cosI: number, cosT: number, n1: number, n2: number): number {
   return 0.5 * (rs * rs + rp * rp)
 }
 
-/** Squared distance in units of p² of a hexagonal-lattice offset given in lattice coordinates (du, dv). */
-function dist2Hex(du: number, dv: number): number {
-  const ex = du + 0.5 * dv, ey = dv * HEX_ROW_FACTOR
-  return ex * ex + ey * ey
-}
-
 /**
  * Follows a ray in air below the cap tops (t ≤ z ≤ t + h) and finds what it meets first: a cap (hit = [τ, sx, sy]),
  * the flat land (hit[0] = τ) or nothing (escape). Coordinates are relative to the current site (the origin), whose
@@ -348,6 +334,8 @@ function airSearch(x: number, y: number, z: number, dx: number, dy: number, dz: 
   let truncated = false
   if (!(lh <= MAX_AIR_STEPS * step)) { lh = MAX_AIR_STEPS * step; truncated = true }
   const r2 = aUm * aUm + 0.25 * step * step
+  // (a·|d_xy|)², with a 1e-9 relative allowance so rays grazing a rim are still handed to the exact test
+  const a2h2 = aUm * aUm * (dx * dx + dy * dy) * (1 + 1e-9)
   const margin = aUm + 0.5 * step
   const rowUm = pitch * HEX_ROW_FACTOR
   const invHs = hs > 0 ? 1 / hs : 0
@@ -378,6 +366,10 @@ function airSearch(x: number, y: number, z: number, dx: number, dy: number, dz: 
       const sy = hex ? j * rowUm : j * pitch
       const ex = px - sx, ey = py - sy
       if (ex * ex + ey * ey > r2) continue
+      // cheap rejections before the quadric: the site's disc must reach the ray's horizontal line, ahead of the start
+      const wx = sx - x, wy = sy - y
+      const cross = wx * dy - wy * dx, along = wx * dx + wy * dy
+      if (cross * cross > a2h2 || along < -aUm * hs) continue
       // each site once per search (a ring of the last 8 tested is enough: a site stays within R for ≤ 4 samples)
       let seen = false
       const lim = nTested < 8 ? nTested : 8
