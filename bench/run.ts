@@ -5,13 +5,8 @@
 import { availableParallelism, cpus } from 'node:os'
 import { scenarioSchema } from '../shared/types/scenario'
 import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
-import { createTracePool, traceOnPool } from '../scripts/trace-pool'
+import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
-// @ts-expect-error plain .mjs build script without types
-import { buildTraceWorker } from '../scripts/build-workers.mjs'
-
-// The pool runs the bundled worker, as production does (fresh from the current sources).
-process.env.LENSFIELD_WORKER = await buildTraceWorker()
 
 const argv = process.argv.slice(2)
 let rays = 2_000_000
@@ -28,8 +23,8 @@ function fmt(n: number): string {
 }
 
 console.log(`Lensfield bench ${new Date().toISOString().slice(0, 10)} — ${cpus()[0]?.model ?? 'cpu'} × ${all}, node ${process.version}, ${rays} rays per figure`)
-const pools = new Map<number, ReturnType<typeof createTracePool>>()
-for (const t of new Set([1, all])) pools.set(t, createTracePool(t))
+const pools = new Map<number, Awaited<ReturnType<typeof createTracePoolReady>>>()
+for (const t of new Set([1, all])) pools.set(t, await createTracePoolReady(t))
 for (const name of selected) {
   const input = benchScenarios[name]
   if (!input) { console.error(`unknown scenario ${name}`); process.exit(2) }

@@ -9,7 +9,7 @@ import {
   buildProfileTable, createRngState, createTally, mergeTally, nextUniform, packScene, sampleIsotropic, sampleLambertian,
   sampleTabulated, seedRay, traceRange, traceScenario, runTalliesFromBuffer, runTalliesToBuffer, prepareRun, traceChunk,
 } from '../../shared/optics'
-import { createTracePool, traceOnPool } from '../../scripts/trace-pool'
+import { createTracePoolReady, traceOnPool } from '../../scripts/trace-pool'
 
 const sc = scenarioSchema.parse({
   emitter: { index: 1.7, angularProfile: 'isotropic', source: { shape: 'extended' } },
@@ -44,7 +44,7 @@ describe('chunking and thread-count invariance', () => {
     const local = traceScenario(sc, { rays, seed: 1102 })
     const results = []
     for (const threads of [1, 2]) {
-      const pool = createTracePool(threads)
+      const pool = await createTracePoolReady(threads)
       try {
         results.push((await traceOnPool(sc, { rays, seed: 1102, threads, pool, chunkRays: 20_000 })).result)
       } finally {
