@@ -1,7 +1,7 @@
 // Runs a scenario on a piscina pool over workers/trace (the same task entry the job system uses): fixed-size
 // chunks (boundaries independent of the thread count), tallies merged as they arrive (integer counts, so the order
 // does not matter). Used by the simulate CLI, the bench and the thread-invariance test.
-import { existsSync, readdirSync, statSync } from 'node:fs'
+import { existsSync, readdirSync, renameSync, statSync } from 'node:fs'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { Piscina } from 'piscina'
@@ -26,7 +26,11 @@ export async function prepareWorker(): Promise<string> {
   if (!existsSync(built) || newestSourceMtimeMs() > statSync(built).mtimeMs) {
     // @ts-expect-error plain .mjs build script without types
     const { buildTraceWorker } = await import('./build-workers.mjs')
-    await buildTraceWorker(built)
+    // written beside and renamed, so a concurrent CLI never loads a half-written file
+    const tmp = `${built}.${process.pid}.tmp.mjs`
+    await buildTraceWorker(tmp)
+    renameSync(tmp, built)
+    try { renameSync(`${tmp}.map`, `${built}.map`) } catch { /* no source map: fine */ }
   }
   return built
 }

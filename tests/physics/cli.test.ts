@@ -1,0 +1,64 @@
+// The simulate CLI end to end (common practice: exit codes and the last-line JSON contract) and the worker's
+// cooperative abort.
+import { describe, expect, it } from 'vitest'
+import { execFileSync, spawnSync } from 'node:child_process'
+import { mkdirSync, writeFileSync } from 'node:fs'
+import { fileURLToPath } from 'node:url'
+import { valueSymbol } from 'piscina'
+import traceTaskRaw, { type TraceTask } from '../../workers/trace'
+import { runTalliesFromBuffer, T_RAYS } from '../../shared/optics'
+
+const root = fileURLToPath(new URL('../..', import.meta.url))
+const dir = `${root}test-output/cli`
+mkdirSync(dir, { recursive: true })
+const example = {
+  emitter: { index: 1.7, angularProfile: 'isotropic', source: { shape: 'extended' } },
+  reflector: { reflectance: 0.8, diffuseFraction: 0 },
+  substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
+  lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 },
+  trace: { rays: 1000000, seed: 1, fresnel: 'averaged' },
+}
+// Outside a pool the task returns piscina's move() wrapper: unwrap it to the transferred buffer.
+const traceTask = (t: TraceTask): ArrayBuffer => (traceTaskRaw(t) as unknown as Record<symbol, ArrayBuffer>)[valueSymbol]!
+function run(args: string[]) {
+  return spawnSync('npx', ['tsx', 'scripts/simulate.ts', ...args], { cwd: root, encoding: 'utf8' })
+}
+
+describe('simulate CLI', () => {
+  it('--json prints one JSON object on the last stdout line; the same seed gives the same numbers on 1 and 2 threads (seed 1301)', () => {
+    writeFileSync(`${dir}/ok.json`, JSON.stringify(example))
+    const a = JSON.parse(execFileSync('npx', ['tsx', 'scripts/simulate.ts', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '1', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const b = JSON.parse(execFileSync('npx', ['tsx', 'scripts/simulate.ts', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '2', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    expect(a.rays).toBe(40000)
+    expect(a.seed).toBe(1301)
+    for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'enhancementStdErr', 'losses', 'intensity', 'luminance', 'planar']) expect(b[k]).toEqual(a[k])
+  })
+  it('exit 2 with the field named for an invalid scenario, bad JSON, a missing file, a bad option', () => {
+    writeFileSync(`${dir}/sag.json`, JSON.stringify({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } }))
+    writeFileSync(`${dir}/broken.json`, '{ "emitter": ')
+    const r1 = run([`${dir}/sag.json`])
+    expect(r1.status).toBe(2)
+    expect(r1.stderr).toContain('lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5')
+    const r2 = run([`${dir}/broken.json`])
+    expect(r2.status).toBe(2)
+    expect(r2.stderr).toContain('is not valid JSON')
+    const r3 = run([`${dir}/missing.json`])
+    expect(r3.status).toBe(2)
+    expect(r3.stderr).toContain('cannot read')
+    const r4 = run([`${dir}/sag.json`, '--rays', 'many'])
+    expect(r4.status).toBe(2)
+    expect(r4.stderr).toContain('--rays must be an integer')
+  })
+})
+
+describe('worker task', () => {
+  it('stops at the next 4096-ray boundary when its abort flag is set, returning a consistent partial tally', () => {
+    const flag = new SharedArrayBuffer(4)
+    Atomics.store(new Int32Array(flag), 0, 1)
+    const t = runTalliesFromBuffer(traceTask({ scenario: example, firstRay: 0, rayCount: 50_000, seed: 1, abortFlag: flag }))
+    expect(t.device[T_RAYS]).toBe(4095)
+    const full = runTalliesFromBuffer(traceTask({ scenario: example, firstRay: 0, rayCount: 5000, seed: 1 }))
+    expect(full.device[T_RAYS]).toBe(5000)
+    expect(full.planar![T_RAYS]).toBe(5000)
+  })
+})
