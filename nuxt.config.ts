@@ -7,6 +7,25 @@ export default defineNuxtConfig({
   devtools: { enabled: false },
   telemetry: false,
   typescript: { strict: true },
+  nitro: {
+    hooks: {
+      // The piscina pool loads its task file by path, so the production build carries the trace worker compiled
+      // to plain JS beside the server entry (.output/server/workers/trace.mjs); piscina stays an external package.
+      async compiled(nitro) {
+        const { build } = await import('esbuild')
+        await build({
+          entryPoints: [new URL('./workers/trace.ts', import.meta.url).pathname],
+          outfile: `${nitro.options.output.serverDir}/workers/trace.mjs`,
+          bundle: true,
+          platform: 'node',
+          format: 'esm',
+          target: 'node20',
+          external: ['piscina'],
+          logLevel: 'warning',
+        })
+      },
+    },
+  },
   runtimeConfig: {
     // NUXT_PUBLIC_DEMO_MODE=true (set by npm start / npm run dev) lists the demo accounts on the sign-in page.
     public: { demoMode: false },

@@ -1,7 +1,7 @@
 // Lensfield's relational schema. Row types are inferred from here ($inferSelect); never write them twice.
 // users/sessions follow the column names lucia's PostgreSQL adapter queries (id, user_id, expires_at).
 import { sql } from 'drizzle-orm'
-import { check, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid, index } from 'drizzle-orm/pg-core'
+import { bigint, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
 export const ROLES = roleEnum.enumValues
@@ -61,6 +61,107 @@ export const designs = pgTable('designs', {
   uniqueIndex('designs_project_name_key').on(t.projectId, t.name),
   check('designs_version_positive', sql`${t.version} >= 1`),
 ])
+
+// ── Runs and sweeps ─────────────────────────────────────────────────────────────────────────────────────────
+// A run evaluates one design (kind 'single', one cell); a sweep evaluates a grid of one or two axes over a design
+// (kind 'sweep', one cell per grid point). Each cell is traced in ray batches; a batch is one queued job. Counts are
+// merged into the cell under a row lock, and the batch is marked done in the same transaction, so a retried or
+// duplicated job never counts twice.
+/** Raw bytes (tallies of integer counts as little-endian Float64). */
+export const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' })
+
+export const runStatusEnum = pgEnum('run_status', ['queued', 'running', 'done', 'cancelled', 'failed'])
+export const cellStatusEnum = pgEnum('cell_status', ['queued', 'running', 'done', 'infeasible', 'cancelled', 'failed'])
+export const batchStatusEnum = pgEnum('batch_status', ['queued', 'done', 'cancelled', 'failed'])
+export const runKindEnum = pgEnum('run_kind', ['single', 'sweep'])
+
+export const runs = pgTable('runs', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  projectId: uuid('project_id').notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  designId: uuid('design_id').references(() => designs.id, { onDelete: 'set null' }),
+  designVersion: integer('design_version').notNull(),
+  designName: text('design_name').notNull(),
+  kind: runKindEnum('kind').notNull(),
+  name: text('name').notNull(),
+  /** The design's scenario as it was when the run was created (validated by scenarioSchema). */
+  baseScenario: jsonb('base_scenario').notNull(),
+  /** Sweep axes (shared/types/sweep.ts SweepAxis[]); [] for a single run. */
+  axes: jsonb('axes').notNull().default(sql`'[]'::jsonb`),
+  /** Figure the best cell is chosen by. */
+  figure: text('figure').notNull().default('enhancement'),
+  seed: bigint('seed', { mode: 'number' }).notNull(),
+  /** Fixed ray count per cell, or null with a target standard error and a ray cap. */
+  raysPerCell: bigint('rays_per_cell', { mode: 'number' }),
+  targetStdErr: doublePrecision('target_std_err'),
+  rayCap: bigint('ray_cap', { mode: 'number' }),
+  batchRays: integer('batch_rays').notNull(),
+  status: runStatusEnum('status').notNull().default('queued'),
+  cellsTotal: integer('cells_total').notNull(),
+  cellsFinished: integer('cells_finished').notNull().default(0),
+  raysPlanned: bigint('rays_planned', { mode: 'number' }).notNull().default(0),
+  raysDone: bigint('rays_done', { mode: 'number' }).notNull().default(0),
+  bestCellIndex: integer('best_cell_index'),
+  error: text('error'),
+  engineVersion: text('engine_version').notNull(),
+  createdBy: text('created_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  startedAt: timestamp('started_at', { withTimezone: true }),
+  finishedAt: timestamp('finished_at', { withTimezone: true }),
+}, (t) => [index('runs_project_idx').on(t.projectId, t.createdAt)])
+
+export const runCells = pgTable('run_cells', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  runId: uuid('run_id').notNull().references(() => runs.id, { onDelete: 'cascade' }),
+  cellIndex: integer('cell_index').notNull(),
+  /** Axis values of this grid point, in axis order ([] for a single run). */
+  coordinates: jsonb('coordinates').notNull(),
+  /** The cell's resolved scenario; null when infeasible. */
+  scenario: jsonb('scenario'),
+  infeasibleReason: text('infeasible_reason'),
+  seed: bigint('seed', { mode: 'number' }).notNull(),
+  status: cellStatusEnum('status').notNull().default('queued'),
+  raysPlanned: bigint('rays_planned', { mode: 'number' }).notNull().default(0),
+  raysDone: bigint('rays_done', { mode: 'number' }).notNull().default(0),
+  /**
+   * Merged integer tallies of the device and of its planar companion (Float64 little-endian, the core's Tally
+   * layout): the compact stored form of the full result. The 1° profile, the θ–φ map and every σ follow from
+   * these counts exactly (summarize in shared/optics), so they are expanded on request rather than stored twice.
+   */
+  deviceTally: bytea('device_tally'),
+  planarTally: bytea('planar_tally'),
+  /** Summary for lists and maps: extraction, enhancement, on-axis luminance with σ, losses (no arrays). */
+  summary: jsonb('summary'),
+  /** 'rays' (fixed count done), 'target' (precision reached) or 'cap' (ray cap hit before the target). */
+  stopReason: text('stop_reason'),
+  error: text('error'),
+  computeMs: integer('compute_ms').notNull().default(0),
+  engineVersion: text('engine_version'),
+  startedAt: timestamp('started_at', { withTimezone: true }),
+  finishedAt: timestamp('finished_at', { withTimezone: true }),
+}, (t) => [uniqueIndex('run_cells_run_cell_key').on(t.runId, t.cellIndex)])
+
+export const runBatches = pgTable('run_batches', {
+  cellId: uuid('cell_id').notNull().references(() => runCells.id, { onDelete: 'cascade' }),
+  batchIndex: integer('batch_index').notNull(),
+  firstRay: bigint('first_ray', { mode: 'number' }).notNull(),
+  rayCount: integer('ray_count').notNull(),
+  jobId: uuid('job_id').notNull(),
+  status: batchStatusEnum('status').notNull().default('queued'),
+  attempts: integer('attempts').notNull().default(0),
+  computeMs: integer('compute_ms'),
+  worker: text('worker'),
+  /** Last error a worker met on this batch (the batch is retried until its retries are used up). */
+  error: text('error'),
+  completedAt: timestamp('completed_at', { withTimezone: true }),
+}, (t) => [
+  primaryKey({ columns: [t.cellId, t.batchIndex] }),
+  index('run_batches_job_idx').on(t.jobId),
+  check('run_batches_rays_positive', sql`${t.rayCount} > 0`),
+])
+
+export type Run = typeof runs.$inferSelect
+export type RunCell = typeof runCells.$inferSelect
+export type RunBatch = typeof runBatches.$inferSelect
 
 export type User = typeof users.$inferSelect
 export type Team = typeof teams.$inferSelect

@@ -84,7 +84,7 @@ export const precisionSchema = z
   })
 
 export const runRequestSchema = z.object({
-  designId: z.string().min(1),
+  designId: z.uuid({ error: 'designId must be the UUID of a saved design' }),
   name: z.string().trim().min(1).max(120).optional(),
   seed: z.number().int().min(0).max(0xffffffff).optional(),
   precision: precisionSchema.optional(),

@@ -31,7 +31,16 @@ export default async function setup(project: TestProject) {
   const log = createWriteStream(logFile)
   const server = spawn(process.execPath, [entry], {
     cwd: repoRoot,
-    env: { ...process.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production' },
+    env: {
+      ...process.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production',
+      // Job system for tests: no embedded worker (each test starts the real worker processes it needs), small
+      // batches, a short expiry and frequent queue maintenance so a killed worker's batch comes back in seconds.
+      LENSFIELD_EMBEDDED_WORKER: '0',
+      LENSFIELD_BATCH_RAYS: '50000',
+      LENSFIELD_JOB_EXPIRE_SECONDS: '8',
+      LENSFIELD_JOB_RETRY_DELAY_SECONDS: '1',
+      LENSFIELD_QUEUE_MAINTENANCE_SECONDS: '1',
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
   })
   server.stdout.pipe(log)

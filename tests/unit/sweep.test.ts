@@ -18,16 +18,16 @@ describe('sweep axes', () => {
   })
 
   it('refuses values together with a range, and a missing range part, naming the field', () => {
-    const r = sweepRequestSchema.safeParse({ designId: 'x', axes: [{ parameter: 'lensArray.sagUm', values: [1], start: 1 }] })
+    const r = sweepRequestSchema.safeParse({ designId: '00000000-0000-4000-8000-000000000000', axes: [{ parameter: 'lensArray.sagUm', values: [1], start: 1 }] })
     expect(r.success).toBe(false)
     expect(JSON.stringify(r.error!.issues[0]!.path)).toContain('values')
-    const r2 = sweepRequestSchema.safeParse({ designId: 'x', axes: [{ parameter: 'lensArray.sagUm', start: 1, stop: 2 }] })
+    const r2 = sweepRequestSchema.safeParse({ designId: '00000000-0000-4000-8000-000000000000', axes: [{ parameter: 'lensArray.sagUm', start: 1, stop: 2 }] })
     expect(r2.success).toBe(false)
     expect(r2.error!.issues.map((i) => i.path.join('.'))).toContain('axes.0.steps')
   })
 
   it('refuses an unknown parameter', () => {
-    const r = sweepRequestSchema.safeParse({ designId: 'x', axes: [{ parameter: 'lensArray.colour', values: [1] }] })
+    const r = sweepRequestSchema.safeParse({ designId: '00000000-0000-4000-8000-000000000000', axes: [{ parameter: 'lensArray.colour', values: [1] }] })
     expect(r.success).toBe(false)
   })
 

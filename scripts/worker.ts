@@ -1,0 +1,39 @@
+// `npm run worker`: an extra worker process on this or another machine. It needs only DATABASE_URL (the same
+// database the web server uses); it takes ray batches from the queue until it is stopped (SIGINT/SIGTERM), then
+// finishes or hands back what it was tracing.
+import { parseArgs } from 'node:util'
+import { stopBoss } from '../server/jobs/boss'
+import { defaultThreads } from '../server/jobs/pool'
+import { startBatchWorker } from '../server/jobs/worker'
+
+const { values } = parseArgs({ options: { threads: { type: 'string' }, help: { type: 'boolean', short: 'h' } } })
+if (values.help) {
+  console.log('usage: npm run worker -- [--threads N]\n  DATABASE_URL must point at the Lensfield database.\n  Threads default to cores − 1 (at least 1), or LENSFIELD_WORKER_THREADS.')
+  process.exit(0)
+}
+if (!process.env.DATABASE_URL) {
+  console.error('DATABASE_URL is not set: point it at the Lensfield database, e.g. DATABASE_URL=postgres://user@host:5432/lensfield npm run worker')
+  process.exit(2)
+}
+let threads = defaultThreads()
+if (values.threads !== undefined) {
+  threads = Number(values.threads)
+  if (!Number.isInteger(threads) || threads < 1) {
+    console.error(`--threads must be a whole number ≥ 1: got ${values.threads}`)
+    process.exit(2)
+  }
+}
+
+const worker = await startBatchWorker({ threads })
+console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)
+let stopping = false
+const shutdown = async (signal: string) => {
+  if (stopping) return
+  stopping = true
+  console.log(`[worker] ${signal}: finishing running batches`)
+  await worker.stop()
+  await stopBoss()
+  process.exit(0)
+}
+process.on('SIGINT', () => void shutdown('SIGINT'))
+process.on('SIGTERM', () => void shutdown('SIGTERM'))

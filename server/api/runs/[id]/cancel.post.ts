@@ -1,0 +1,12 @@
+import { idParamSchema } from '../../../../shared/types/project'
+import { cancelRun } from '../../../jobs/runs'
+
+export default defineEventHandler(async (event) => {
+  const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
+  await requireRunRole(event, id, EDITOR_ROLES, 'cancelling a run')
+  const r = await cancelRun(id)
+  if (!r.cancelled) {
+    throw createError({ statusCode: 409, statusMessage: 'Conflict', message: `This run has already ended (${r.status}); nothing to cancel.` })
+  }
+  return r
+})

@@ -1,0 +1,8 @@
+import { runRequestSchema } from '../../../shared/types/sweep'
+
+export default defineEventHandler(async (event) => {
+  const body = await readValidatedBody(event, zodValidator(runRequestSchema))
+  const run = await startRunFromRequest(event, body, 'single')
+  setResponseStatus(event, 201)
+  return { run }
+})

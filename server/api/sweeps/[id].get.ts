@@ -1,0 +1,2 @@
+// A sweep is a run of kind 'sweep': the same handler serves both addresses.
+export { default } from '../runs/[id].get'

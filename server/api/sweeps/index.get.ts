@@ -1,0 +1,7 @@
+import { runListQuerySchema } from '../../../shared/types/run'
+
+export default defineEventHandler(async (event) => {
+  const q = await getValidatedQuery(event, zodValidator(runListQuerySchema.omit({ kind: true })))
+  await requireProjectRole(event, q.projectId, ANY_ROLE)
+  return { sweeps: await listRuns(q.projectId, 'sweep') }
+})

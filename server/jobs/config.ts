@@ -1,0 +1,36 @@
+// Settings of the job system, from the environment with defaults sized for these 2-core machines.
+// Plain module: the web server's embedded worker and `npm run worker` read the same values.
+
+function envInt(name: string, fallback: number, min: number): number {
+  const raw = process.env[name]
+  if (raw === undefined || raw === '') return fallback
+  const v = Number(raw)
+  if (!Number.isInteger(v) || v < min) throw new Error(`${name} must be a whole number ≥ ${min}: got ${raw}`)
+  return v
+}
+
+export const QUEUE_BATCH = 'lensfield-trace-batch'
+export const QUEUE_DEAD = 'lensfield-trace-batch-dead'
+/** NOTIFY channels; payloads carry ids only. */
+export const CHANNEL_PROGRESS = 'lensfield_progress'
+export const CHANNEL_CANCEL = 'lensfield_cancel'
+
+export function jobSettings() {
+  return {
+    /** Rays in one queued batch: a batch takes seconds on one thread, so a lost worker costs little. */
+    batchRays: envInt('LENSFIELD_BATCH_RAYS', 200_000, 1000),
+    /** A batch not finished in this time is taken from its worker and retried (pg-boss expiry). */
+    expireSeconds: envInt('LENSFIELD_JOB_EXPIRE_SECONDS', 120, 1),
+    retryLimit: envInt('LENSFIELD_JOB_RETRY_LIMIT', 4, 0),
+    retryDelaySeconds: envInt('LENSFIELD_JOB_RETRY_DELAY_SECONDS', 2, 0),
+    /** How often pg-boss looks for expired jobs. */
+    maintenanceSeconds: envInt('LENSFIELD_QUEUE_MAINTENANCE_SECONDS', 30, 1),
+    /**
+     * Per-team limit on rays waiting to be traced: a new run or sweep is refused when its cost plus what the team
+     * already has queued would pass it. Cost counts the device and its planar companion.
+     */
+    teamRayLimit: envInt('LENSFIELD_TEAM_RAY_LIMIT', 1_000_000_000, 1000),
+    /** How often an idle worker asks the queue for work (pg-boss allows 0.5 s at the least). */
+    pollingSeconds: 0.5,
+  }
+}
