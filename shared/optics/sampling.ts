@@ -7,7 +7,7 @@
 /** Uniform direction on the sphere. */
 export function sampleIsotropic(u1: number, u2: number, out: Float64Array): void {
   const mu = 2 * u1 - 1
-  const s = Math.sqrt(Math.max(0, 1 - mu * mu))
+  const s = Math.sqrt(Math.max(0, 1 - mu * mu)) // clamp: 1 − μ² may round below 0 at |μ| → 1
   const phi = 2 * Math.PI * u2
   out[0] = s * Math.cos(phi)
   out[1] = s * Math.sin(phi)
@@ -48,6 +48,7 @@ export function buildProfileTable(rows: ReadonlyArray<readonly [number, number]>
     const tmDeg = (((ta + tb) / 2) * 180) / Math.PI
     while (j < rows.length - 2 && rows[j + 1]![0] < tmDeg) j++
     const r0 = rows[j]!, r1 = rows[j + 1]!
+    // clamp: the interpolation weight stays in [0, 1] (the slice midpoint may sit a rounding error past a row)
     const f = Math.min(1, Math.max(0, (tmDeg - r0[0]) / (r1[0] - r0[0])))
     const intensity = r0[1] + f * (r1[1] - r0[1])
     acc += intensity * (Math.cos(ta) - Math.cos(tb))
@@ -70,7 +71,7 @@ export function sampleTabulated(table: Float64Array, offset: number, u1: number,
   }
   const muA = table[offset + K + 1 + lo]!, muB = table[offset + K + 2 + lo]!
   const mu = muA + (muB - muA) * u3
-  const s = Math.sqrt(Math.max(0, 1 - mu * mu))
+  const s = Math.sqrt(Math.max(0, 1 - mu * mu)) // clamp: rounding at |μ| → 1
   const phi = 2 * Math.PI * u2
   out[0] = s * Math.cos(phi)
   out[1] = s * Math.sin(phi)

@@ -275,15 +275,15 @@ export function traceRange(
     switch (end) {
       case T_EXTRACTED: {
         nExt++
-        const th = Math.acos(dz > 1 ? 1 : dz)
+        const th = Math.acos(dz > 1 ? 1 : dz) // |d| = 1 up to rounding; acos(1 + 1e-16) would be NaN
         let bt = (th * RAD_TO_THETA_BIN) | 0
         if (bt >= THETA_BINS) bt = THETA_BINS - 1
         let ph = Math.atan2(dy, dx)
         if (ph < 0) ph += TWO_PI
         let bp = (ph * RAD_TO_PHI_BIN) | 0
         if (bp >= PHI_BINS) bp = PHI_BINS - 1
-        tally[T_THETA + bt]++
-        tally[T_MAP + bt * PHI_BINS + bp]++
+        tally[T_THETA + bt] = tally[T_THETA + bt]! + 1
+        tally[T_MAP + bt * PHI_BINS + bp] = tally[T_MAP + bt * PHI_BINS + bp]! + 1
         break
       }
       case T_REFLECTOR: nRefl++; break

@@ -57,7 +57,7 @@ describe('air search finds the first cap or the land, like brute force (seed 21,
       const dx = sn * Math.cos(phi), dy = sn * Math.sin(phi), dz = mu
       const kind = findAirHit(x, y, z, dx, dy, dz, fromCap, hex, p, a, h, t, c, k1, out)
       const ref = bruteForce(x, y, z, dx, dy, dz, fromCap, hex, p, a, h, t, c, k1)
-      tally[kind]++
+      tally[kind] = tally[kind]! + 1
       // a ray leaving the origin cap outward cannot hit it again (convex), so excluding it loses nothing
       expect(kind, `ray ${n}`).toBe(ref.kind)
       if (kind === AIR_CAP) {
