@@ -24,7 +24,6 @@ export async function prepareWorker(): Promise<string> {
   if (forced) return forced
   const built = `${root}dist/workers/trace.mjs`
   if (!existsSync(built) || newestSourceMtimeMs() > statSync(built).mtimeMs) {
-    // @ts-expect-error plain .mjs build script without types
     const { buildTraceWorker } = await import('./build-workers.mjs')
     // written beside and renamed, so a concurrent CLI never loads a half-written file
     const tmp = `${built}.${process.pid}.tmp.mjs`

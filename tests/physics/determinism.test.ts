@@ -2,7 +2,6 @@
 // count of the real piscina pool (common practice for reproducible Monte Carlo); sampling checks by χ².
 import { beforeAll, describe, expect, it } from 'vitest'
 import { fileURLToPath } from 'node:url'
-// @ts-expect-error plain .mjs build script without types
 import { buildTraceWorker } from '../../scripts/build-workers.mjs'
 import { scenarioSchema } from '../../shared/types/scenario'
 import {

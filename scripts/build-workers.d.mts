@@ -1,0 +1,2 @@
+/** Bundles workers/trace.ts into `outfile` (default dist/workers/trace.mjs); resolves to the written path. */
+export function buildTraceWorker(outfile?: string): Promise<string>
