@@ -2,6 +2,7 @@
 // needs a JavaScript file, so the production build carries a compiled copy at .output/server/workers/trace.mjs
 // (written by the build hook in nuxt.config.ts), and development and the stand-alone worker compile it on first use
 // with esbuild into node_modules/.cache. LENSFIELD_TRACE_WORKER points at another compiled file.
+import { createHash } from 'node:crypto'
 import { existsSync, mkdirSync, readdirSync, renameSync, statSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
@@ -65,7 +66,9 @@ export async function resolveTraceWorker(): Promise<string> {
     if (up === root) throw new Error('cannot find the trace worker: neither .output/server/workers/trace.mjs nor workers/trace.ts')
     root = up
   }
-  const out = join(root, 'node_modules', '.cache', 'lensfield', 'trace.mjs')
+  // One bundle per checkout (git worktrees may share node_modules), named by a hash of the checkout's path.
+  const tag = createHash('sha256').update(root).digest('hex').slice(0, 12)
+  const out = join(root, 'node_modules', '.cache', 'lensfield', `trace-${tag}.mjs`)
   const srcTime = Math.max(newestMtime(join(root, 'shared')), newestMtime(join(root, 'workers')))
   if (!existsSync(out) || statSync(out).mtimeMs < srcTime) await compileTraceWorker(root, out)
   return out
