@@ -8,7 +8,7 @@ import type { Losses, TraceResult } from '../types/result'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
-  createTally, mergeTally, PHI_BINS, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  createTally, mergeTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -137,6 +137,28 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
       }
     }
   }
+  // finite pixel: light leaving within the pixel's footprint, device vs planar companion
+  let pixel: TraceResult['pixel'] = null
+  if (d[T_PIXEL_RAYS]! > 0) {
+    const p = t.planar ?? d
+    const np = p[T_RAYS]!
+    const lamb = Math.sin(PIXEL_AXIS_BINS * DEG) ** 2
+    const fr = (c: number, m: number) => (m > 0 ? c / m : 0)
+    const axD = fr(d[T_PIXEL_AXIS]!, n) / lamb, axDe = binomialErr(d[T_PIXEL_AXIS]!, n) / lamb
+    const axP = fr(p[T_PIXEL_AXIS]!, np) / lamb, axPe = binomialErr(p[T_PIXEL_AXIS]!, np) / lamb
+    const same = p === d
+    const ratio = axP > 0 ? axD / axP : NaN
+    pixel = {
+      extraction: fr(d[T_PIXEL_EXTRACTED]!, n),
+      extractionStdErr: binomialErr(d[T_PIXEL_EXTRACTED]!, n),
+      onAxisRelative: axD,
+      onAxisRelativeStdErr: axDe,
+      planarOnAxisRelative: axP,
+      planarOnAxisRelativeStdErr: axPe,
+      onAxisEnhancement: same ? 1 : ratio,
+      onAxisEnhancementStdErr: same ? 0 : axD > 0 && axP > 0 ? ratio * Math.sqrt((axDe / axD) ** 2 + (axPe / axP) ** 2) : NaN,
+    }
+  }
   let planarExt = ext, planarErr = extErr, planarLosses = L.v
   let enh = 1, enhErr = 0
   if (t.planar) {
@@ -171,6 +193,7 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
       halfLuminanceAngleDeg: half,
     },
     planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses },
+    pixel,
     enhancement: enh,
     enhancementStdErr: enhErr,
   }

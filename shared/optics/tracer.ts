@@ -19,7 +19,7 @@ import {
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
-  PHI_BINS, T_EVENTS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
+  PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -83,6 +83,8 @@ export function traceRange(
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
   const maxEvents = scene[S_MAX_EVENTS]!
   const specular = fd === 0 || rb === 0
+  // Lateral positions matter with a lens array (which cap) and for a finite pixel (the footprint tally).
+  const trackPos = hasLens || source !== SOURCE_EXTENDED
   const row2Um = 2 * pitch * HEX_ROW_FACTOR // p√3
   const invPitch = 1 / pitch, invRow2 = 1 / row2Um
 
@@ -99,6 +101,7 @@ export function traceRange(
     else if (source === SOURCE_DISC) sampleDisc(srcA, up1, up2, v3)
     else sampleRectangle(srcA, srcB, up1, up2, v3)
     let x = v3[0]!, y = v3[1]!, z = 0
+    let ox = 0, oy = 0 // site offset removed by wrapping: the absolute lateral position is (x + ox, y + oy)
     if (profile === PROFILE_ISOTROPIC) sampleIsotropic((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
@@ -138,7 +141,7 @@ export function traceRange(
           if (dz < 0) {
             // bottom face: substrate → emitter layer (then the reflector)
             z = 0
-            if (hasLens) { x += dx * pathUm; y += dy * pathUm }
+            if (trackPos) { x += dx * pathUm; y += dy * pathUm }
             const cosI = -dz
             const eta = nS / nE
             const sin2T = eta * eta * (1 - cosI * cosI)
@@ -150,8 +153,8 @@ export function traceRange(
             break
           }
           z = tUm
+          if (trackPos) { x += dx * pathUm; y += dy * pathUm }
           if (hasLens) {
-            x += dx * pathUm; y += dy * pathUm
             // wrap to the nearest site (inlined nearestSite). The hexagonal lattice is the union of two
             // rectangular lattices p × p√3 (offset by (p/2, p√3/2)): the nearer of their two nearest sites.
             let sx: number, sy: number
@@ -164,7 +167,7 @@ export function traceRange(
             } else {
               sx = Math.round(x * invPitch) * pitch; sy = Math.round(y * invPitch) * pitch
             }
-            x -= sx; y -= sy
+            x -= sx; y -= sy; ox += sx; oy += sy
             if (x * x + y * y < a2) {
               // lens base: substrate → lens material
               if (nL !== nS) {
@@ -257,7 +260,7 @@ export function traceRange(
             break
           }
           // a cap: move the origin to its site
-          x -= hit[1]!; y -= hit[2]!
+          x -= hit[1]!; y -= hit[2]!; ox += hit[1]!; oy += hit[2]!
           let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
           const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
           nx *= inv; ny *= inv; nz *= inv
@@ -289,6 +292,15 @@ export function traceRange(
         let bp = (ph * RAD_TO_PHI_BIN) | 0
         if (bp >= PHI_BINS) bp = PHI_BINS - 1
         tally[T_THETA + bt] = tally[T_THETA + bt]! + 1
+        if (source !== SOURCE_EXTENDED) {
+          // finite pixel: does the ray leave the device within the pixel's footprint?
+          const ax = x + ox, ay = y + oy
+          const inside = source === SOURCE_DISC ? ax * ax + ay * ay <= srcA * srcA : Math.abs(ax) <= 0.5 * srcA && Math.abs(ay) <= 0.5 * srcB
+          if (inside) {
+            tally[T_PIXEL_EXTRACTED] = tally[T_PIXEL_EXTRACTED]! + 1
+            if (bt < PIXEL_AXIS_BINS) tally[T_PIXEL_AXIS] = tally[T_PIXEL_AXIS]! + 1
+          }
+        }
         tally[T_MAP + bt * PHI_BINS + bp] = tally[T_MAP + bt * PHI_BINS + bp]! + 1
         break
       }
@@ -307,6 +319,7 @@ export function traceRange(
   tally[T_TRAPPED] = tally[T_TRAPPED]! + nTrap
   tally[T_UNRESOLVED] = tally[T_UNRESOLVED]! + nUnres
   tally[T_EVENTS] = tally[T_EVENTS]! + nEvents
+  if (source !== SOURCE_EXTENDED) tally[T_PIXEL_RAYS] = tally[T_PIXEL_RAYS]! + done
   return done
 }
 
