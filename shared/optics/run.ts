@@ -124,17 +124,23 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
   const axisLamb = Math.sin(ON_AXIS_CONE_DEG * DEG) ** 2
   const onAxis = n > 0 ? axisCount / n / axisLamb : 0
   const onAxisErr = n > 0 ? Math.sqrt(axisCount * (1 - axisCount / n)) / n / axisLamb : 0
-  // first crossing of half the on-axis value, linear between bin centres
+  // Half-luminance angle: luminance pooled over a sliding 5° window (bins b−2..b+2, the Lambertian share of the
+  // same window as reference), so single 1° bins near the axis, whose solid angle is tiny, cannot trigger it by
+  // noise; the window at b = 2 is the on-axis cone itself. First window at or below half the on-axis value,
+  // linear between window centres.
   let half: number | null = null
   if (onAxis > 0) {
     const target = 0.5 * onAxis
-    for (let b = 0; b < THETA_BINS; b++) {
-      if (lum[b]! <= target) {
-        if (b === 0) { half = 0.5; break }
-        const l0 = lum[b - 1]!, l1 = lum[b]!
-        half = b - 0.5 + (l0 - target) / (l0 - l1)
+    let prev = onAxis
+    for (let b = 2; b <= THETA_BINS - 3; b++) {
+      let c = 0
+      for (let k = b - 2; k <= b + 2; k++) c += d[T_THETA + k]!
+      const lw = c / n / (Math.sin((b + 3) * DEG) ** 2 - Math.sin((b - 2) * DEG) ** 2)
+      if (lw <= target) {
+        half = b - 0.5 + (prev - target) / (prev - lw)
         break
       }
+      prev = lw
     }
   }
   // finite pixel: light leaving within the pixel's footprint, device vs planar companion

@@ -46,7 +46,10 @@ export const resultSchema = z.object({
     onAxisRelative: z.number(),
     onAxisRelativeStdErr: z.number(),
     onAxisConeDeg: z.number(),
-    /** Angle where luminance first falls to half its on-axis value (deg); null if it never does before 89.5°. */
+    /**
+     * Angle where luminance first falls to half its on-axis value (deg), luminance pooled over a sliding 5° window
+     * against noise, linear between window centres; null if it never does before 87.5°.
+     */
     halfLuminanceAngleDeg: z.number().nullable(),
   }),
   planar: z.object({ extraction: z.number(), extractionStdErr: z.number(), losses: lossesSchema }),
