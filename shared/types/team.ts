@@ -2,7 +2,6 @@
 import { z } from 'zod'
 import { emailSchema, signUpSchema, ROLE_NAMES } from './account'
 
-export const idParamSchema = z.object({ id: z.uuid({ error: 'id must be a UUID' }) })
 
 export const invitationCreateSchema = z.object({
   email: emailSchema,
