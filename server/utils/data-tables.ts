@@ -9,6 +9,11 @@ import { fileNameProblem, MAX_TABLE_BYTES, parseDataTable, type DataTableKind } 
 import type { Db } from './db'
 
 const UNIQUE_VIOLATION = '23505'
+/** Drizzle wraps the driver's error; the Postgres code sits on it or on its cause. */
+const isUniqueViolation = (err: unknown) => {
+  const e = err as { code?: string; cause?: { code?: string } }
+  return e?.code === UNIQUE_VIOLATION || e?.cause?.code === UNIQUE_VIOLATION
+}
 
 /** Checks the declared length, then reads the body (at most MAX_TABLE_BYTES). */
 export async function readUploadBody(event: H3Event): Promise<Uint8Array> {
@@ -46,7 +51,7 @@ export async function storeDataTable(db: Db, opts: { projectId: string; kind: Da
     }).returning()
     return describeTable(row!)
   } catch (err) {
-    if ((err as { code?: string }).code === UNIQUE_VIOLATION) {
+    if (isUniqueViolation(err)) {
       throw createError({ statusCode: 409, statusMessage: 'Conflict', message: `This project already has a ${opts.kind} table named "${opts.name}"; choose another name.` })
     }
     throw err

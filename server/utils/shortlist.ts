@@ -10,6 +10,11 @@ import { requireUser } from './auth'
 import { useDb, type Db, type DbOrTx } from './db'
 
 const UNIQUE_VIOLATION = '23505'
+/** Drizzle wraps the driver's error; the Postgres code sits on it or on its cause. */
+const isUniqueViolation = (err: unknown) => {
+  const e = err as { code?: string; cause?: { code?: string } }
+  return e?.code === UNIQUE_VIOLATION || e?.cause?.code === UNIQUE_VIOLATION
+}
 
 export async function requireShortlistRole(event: H3Event, entryId: string, allowed: readonly Role[], what = 'this action'):
 Promise<{ user: User; project: Project; entry: ShortlistEntry; role: Role }> {
@@ -43,7 +48,7 @@ export async function addToShortlist(db: Db, projectId: string, userId: string, 
       return entry!
     })
   } catch (err) {
-    if ((err as { code?: string }).code === UNIQUE_VIOLATION) {
+    if (isUniqueViolation(err)) {
       throw createError({ statusCode: 409, statusMessage: 'Conflict', message: 'This cell is already on the shortlist; add a comment to its note instead.' })
     }
     throw err
