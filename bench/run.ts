@@ -44,6 +44,6 @@ for (const name of selected) {
     await traceOnPool(sc, { rays, seed: 1, threads: t, pool })
     poolRate.push(rays / ((performance.now() - t1) / 1000))
   }
-  console.log(`${name.padEnd(30)} in-process 1 thread ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
+  console.log(`${name.padEnd(30)} in-process (tsx, unbundled) ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
 }
 for (const p of pools.values()) await p.destroy()

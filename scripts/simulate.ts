@@ -59,8 +59,15 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
     `                     waveguided ${pct(L.waveguided, E.waveguided)}, trapped ${pct(L.trapped, E.trapped)}, unresolved ${pct(L.unresolved, E.unresolved)}`,
     `on-axis luminance    ${pm(r.luminance.onAxisRelative, r.luminance.onAxisRelativeStdErr, 3)} × Lambertian of the emitted flux (θ < ${r.luminance.onAxisConeDeg}°)`,
     `half-luminance angle ${r.luminance.halfLuminanceAngleDeg === null ? 'none below 90°' : `${r.luminance.halfLuminanceAngleDeg.toFixed(1)}° (from 1° bins, noisy at few rays)`}`,
-    'intensity in air (1/sr per emitted ray, azimuth-averaged):',
   ]
+  if (r.pixel) {
+    const p = r.pixel
+    lines.push(
+      `pixel footprint      extraction ${pct(p.extraction, p.extractionStdErr)}, on-axis luminance ${pm(p.onAxisRelative, p.onAxisRelativeStdErr, 3)} × Lambertian`,
+      `                     planar ${pm(p.planarOnAxisRelative, p.planarOnAxisRelativeStdErr, 3)}, on-axis enhancement ${pm(p.onAxisEnhancement, p.onAxisEnhancementStdErr, 3)} ×`,
+    )
+  }
+  lines.push('intensity in air (1/sr per emitted ray, azimuth-averaged):')
   for (const th of [0, 10, 20, 30, 40, 50, 60, 70, 80]) {
     lines.push(`  θ ${String(th).padStart(2)}–${th + 1}°        ${pm(r.intensity.perSteradian[th]!, r.intensity.perSteradianStdErr[th]!, 4)} /sr   L/L_Lamb ${pm(r.luminance.relative[th]!, r.luminance.relativeStdErr[th]!, 3)}`)
   }

@@ -44,6 +44,23 @@ export function nearestSite(hexagonal: boolean, pitchUm: number, x: number, y: n
  */
 export function capHit(px: number, py: number, pz: number, dx: number, dy: number, dz: number,
   zvUm: number, cPerUm: number, k1: number, sagUm: number, onSurface: boolean): number {
+  capHitTo(capScratch, px, py, pz, dx, dy, dz, zvUm, cPerUm, k1, sagUm, onSurface)
+  return capScratch[0]!
+}
+
+const capScratch = new Float64Array(1)
+
+/**
+ * As capHit, writing τ (or −1) into out[0]. The tracer calls this form: a void call costs no boxed double when
+ * V8 declines to inline it (the hot loop's inlining budget runs out).
+ */
+export function capHitTo(out: Float64Array, px: number, py: number, pz: number, dx: number, dy: number, dz: number,
+  zvUm: number, cPerUm: number, k1: number, sagUm: number, onSurface: boolean): void {
+  out[0] = capHitValue(px, py, pz, dx, dy, dz, zvUm, cPerUm, k1, sagUm, onSurface)
+}
+
+function capHitValue(px: number, py: number, pz: number, dx: number, dy: number, dz: number,
+  zvUm: number, cPerUm: number, k1: number, sagUm: number, onSurface: boolean): number {
   // s may overshoot [0, h] by rounding at the rim or vertex: 1e-9·h is far above double rounding of s (~1e-16·h)
   // and far below any feature size (a hit 1e-9·h below the rim is on the land to within that).
   const sLo = -1e-9 * sagUm, sHi = sagUm * (1 + 1e-9)

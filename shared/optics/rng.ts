@@ -51,3 +51,17 @@ export function nextUint32(st: RngState): number {
 export function nextUniform(st: RngState): number {
   return (nextUint32(st) + 0.5) * 2.3283064365386963e-10
 }
+
+/** Fills `out` with the next out.length uniforms of the stream (the same numbers nextUniform would return). */
+export function fillUniforms(st: RngState, out: Float64Array): void {
+  let a = st[0]!, b = st[1]!, c = st[2]!, d = st[3]!
+  for (let i = 0; i < out.length; i++) {
+    const t = (((a + b) | 0) + d) | 0
+    d = (d + 1) | 0
+    a = b ^ (b >>> 9)
+    b = (c + (c << 3)) | 0
+    c = (((c << 21) | (c >>> 11)) + t) | 0
+    out[i] = ((t >>> 0) + 0.5) * 2.3283064365386963e-10
+  }
+  st[0] = a; st[1] = b; st[2] = c; st[3] = d
+}

@@ -8,7 +8,7 @@ import type { Losses, TraceResult } from '../types/result'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
-  createTally, mergeTally, PHI_BINS, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  createTally, mergeTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -124,17 +124,45 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
   const axisLamb = Math.sin(ON_AXIS_CONE_DEG * DEG) ** 2
   const onAxis = n > 0 ? axisCount / n / axisLamb : 0
   const onAxisErr = n > 0 ? Math.sqrt(axisCount * (1 - axisCount / n)) / n / axisLamb : 0
-  // first crossing of half the on-axis value, linear between bin centres
+  // Half-luminance angle: luminance pooled over a sliding 5° window (bins b−2..b+2, the Lambertian share of the
+  // same window as reference), so single 1° bins near the axis, whose solid angle is tiny, cannot trigger it by
+  // noise; the window at b = 2 is the on-axis cone itself. First window at or below half the on-axis value,
+  // linear between window centres.
   let half: number | null = null
   if (onAxis > 0) {
     const target = 0.5 * onAxis
-    for (let b = 0; b < THETA_BINS; b++) {
-      if (lum[b]! <= target) {
-        if (b === 0) { half = 0.5; break }
-        const l0 = lum[b - 1]!, l1 = lum[b]!
-        half = b - 0.5 + (l0 - target) / (l0 - l1)
+    let prev = onAxis
+    for (let b = 2; b <= THETA_BINS - 3; b++) {
+      let c = 0
+      for (let k = b - 2; k <= b + 2; k++) c += d[T_THETA + k]!
+      const lw = c / n / (Math.sin((b + 3) * DEG) ** 2 - Math.sin((b - 2) * DEG) ** 2)
+      if (lw <= target) {
+        half = b - 0.5 + (prev - target) / (prev - lw)
         break
       }
+      prev = lw
+    }
+  }
+  // finite pixel: light leaving within the pixel's footprint, device vs planar companion
+  let pixel: TraceResult['pixel'] = null
+  if (d[T_PIXEL_RAYS]! > 0) {
+    const p = t.planar ?? d
+    const np = p[T_RAYS]!
+    const lamb = Math.sin(PIXEL_AXIS_BINS * DEG) ** 2
+    const fr = (c: number, m: number) => (m > 0 ? c / m : 0)
+    const axD = fr(d[T_PIXEL_AXIS]!, n) / lamb, axDe = binomialErr(d[T_PIXEL_AXIS]!, n) / lamb
+    const axP = fr(p[T_PIXEL_AXIS]!, np) / lamb, axPe = binomialErr(p[T_PIXEL_AXIS]!, np) / lamb
+    const same = p === d
+    const ratio = axP > 0 ? axD / axP : NaN
+    pixel = {
+      extraction: fr(d[T_PIXEL_EXTRACTED]!, n),
+      extractionStdErr: binomialErr(d[T_PIXEL_EXTRACTED]!, n),
+      onAxisRelative: axD,
+      onAxisRelativeStdErr: axDe,
+      planarOnAxisRelative: axP,
+      planarOnAxisRelativeStdErr: axPe,
+      onAxisEnhancement: same ? 1 : ratio,
+      onAxisEnhancementStdErr: same ? 0 : axD > 0 && axP > 0 ? ratio * Math.sqrt((axDe / axD) ** 2 + (axPe / axP) ** 2) : NaN,
     }
   }
   let planarExt = ext, planarErr = extErr, planarLosses = L.v
@@ -171,6 +199,7 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
       halfLuminanceAngleDeg: half,
     },
     planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses },
+    pixel,
     enhancement: enh,
     enhancementStdErr: enhErr,
   }

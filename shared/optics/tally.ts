@@ -16,7 +16,17 @@ export const T_UNRESOLVED = 6
 export const T_EVENTS = 7 // interface and reflector encounters, all rays (diagnostic)
 export const T_THETA = 8
 export const T_MAP = T_THETA + THETA_BINS
-export const TALLY_LENGTH = T_MAP + THETA_BINS * PHI_BINS
+/**
+ * Finite pixel (disc or rectangle source): extracted rays that leave the device inside the pixel's footprint
+ * (lateral exit position within the source shape), all angles and within the on-axis cone θ < PIXEL_AXIS_BINS°.
+ * This is what a luminance meter focused on the pixel sees; lenses spread light sideways out of it.
+ */
+export const T_PIXEL_EXTRACTED = T_MAP + THETA_BINS * PHI_BINS
+export const T_PIXEL_AXIS = T_PIXEL_EXTRACTED + 1
+/** Rays launched from a finite pixel (equals T_RAYS for disc/rectangle sources, 0 for an extended one). */
+export const T_PIXEL_RAYS = T_PIXEL_AXIS + 1
+export const PIXEL_AXIS_BINS = 5
+export const TALLY_LENGTH = T_PIXEL_RAYS + 1
 
 export type Tally = Float64Array
 

@@ -9,8 +9,8 @@
 // n·sinθ never changes, so a ray totally reflected at the top face can never escape: it ends at once as trapped.
 // More than maxEvents interface/reflector encounters: unresolved. Positions are wrapped to the nearest lattice site
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
-import { createRngState, nextUniform, seedRay } from './rng'
-import { capHit, HEX_ROW_FACTOR } from './geometry'
+import { createRngState, fillUniforms, seedRay } from './rng'
+import { capHit, capHitTo, HEX_ROW_FACTOR } from './geometry'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
   FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
@@ -19,7 +19,7 @@ import {
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
-  PHI_BINS, T_EVENTS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
+  PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -35,6 +35,10 @@ const TWO_PI = 2 * Math.PI
 const MAX_AIR_STEPS = 1 << 14
 
 const rng = createRngState()
+// Uniforms are drawn in blocks of UB into ubuf (a void call, inlined or not) and read inline: the same numbers in
+// the same order as nextUniform(rng), without a boxed double per draw from a call V8 declined to inline.
+const UB = 8
+const ubuf = new Float64Array(UB)
 const v3 = new Float64Array(3)
 // Air search hit record: [tau, siteX, siteY].
 const hit = new Float64Array(3)
@@ -79,6 +83,8 @@ export function traceRange(
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
   const maxEvents = scene[S_MAX_EVENTS]!
   const specular = fd === 0 || rb === 0
+  // Lateral positions matter with a lens array (which cap) and for a finite pixel (the footprint tally).
+  const trackPos = hasLens || source !== SOURCE_EXTENDED
   const row2Um = 2 * pitch * HEX_ROW_FACTOR // p√3
   const invPitch = 1 / pitch, invRow2 = 1 / row2Um
 
@@ -87,16 +93,18 @@ export function traceRange(
   for (; done < rayCount; done++) {
     if ((done & 4095) === 4095 && shouldStop !== undefined && shouldStop()) break
     seedRay(rng, seed, streamId, firstRay + done)
+    let ui = UB // empty block: the first draw refills it
 
     // launch: position (always drawn, so streams line up between variants), then direction
-    const up1 = nextUniform(rng), up2 = nextUniform(rng)
+    const up1 = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), up2 = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
     if (source === SOURCE_EXTENDED) sampleCell(hex, pitch, up1, up2, v3)
     else if (source === SOURCE_DISC) sampleDisc(srcA, up1, up2, v3)
     else sampleRectangle(srcA, srcB, up1, up2, v3)
     let x = v3[0]!, y = v3[1]!, z = 0
-    if (profile === PROFILE_ISOTROPIC) sampleIsotropic(nextUniform(rng), nextUniform(rng), v3)
-    else if (profile === PROFILE_LAMBERTIAN) sampleLambertian(nextUniform(rng), nextUniform(rng), v3)
-    else sampleTabulated(scene, S_TABLE, nextUniform(rng), nextUniform(rng), nextUniform(rng), v3)
+    let ox = 0, oy = 0 // site offset removed by wrapping: the absolute lateral position is (x + ox, y + oy)
+    if (profile === PROFILE_ISOTROPIC) sampleIsotropic((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+    else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+    else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
@@ -109,9 +117,9 @@ export function traceRange(
         case MED_EMITTER: {
           if (dz < 0) {
             // reflector directly under the emitter
-            if (nextUniform(rng) >= rb) { end = T_REFLECTOR; break }
-            if (fd > 0 && nextUniform(rng) < fd) {
-              sampleLambertian(nextUniform(rng), nextUniform(rng), v3)
+            if ((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)) >= rb) { end = T_REFLECTOR; break }
+            if (fd > 0 && (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)) < fd) {
+              sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
               dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
             } else dz = -dz
             break
@@ -121,7 +129,7 @@ export function traceRange(
           const sin2T = eta * eta * (1 - dz * dz)
           if (sin2T >= 1) { end = T_WAVEGUIDED; break }
           const cosT = Math.sqrt(1 - sin2T)
-          if (!noFresnel && nE !== nS && nextUniform(rng) < fresnelR(dz, cosT, nE, nS)) { dz = -dz; break }
+          if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nE, nS)) { dz = -dz; break }
           dx *= eta; dy *= eta; dz = cosT
           med = MED_SUBSTRATE
           break
@@ -129,24 +137,24 @@ export function traceRange(
         case MED_SUBSTRATE: {
           // always face to face: z is 0 or t on entry
           const pathUm = dz > 0 ? tUm / dz : -tUm / dz
-          if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * pathUm) { end = T_SUBSTRATE; break }
+          if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * pathUm) { end = T_SUBSTRATE; break }
           if (dz < 0) {
             // bottom face: substrate → emitter layer (then the reflector)
             z = 0
-            if (hasLens) { x += dx * pathUm; y += dy * pathUm }
+            if (trackPos) { x += dx * pathUm; y += dy * pathUm }
             const cosI = -dz
             const eta = nS / nE
             const sin2T = eta * eta * (1 - cosI * cosI)
             if (sin2T >= 1) { dz = cosI; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && nE !== nS && nextUniform(rng) < fresnelR(cosI, cosT, nS, nE)) { dz = cosI; break }
+            if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nS, nE)) { dz = cosI; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_EMITTER
             break
           }
           z = tUm
+          if (trackPos) { x += dx * pathUm; y += dy * pathUm }
           if (hasLens) {
-            x += dx * pathUm; y += dy * pathUm
             // wrap to the nearest site (inlined nearestSite). The hexagonal lattice is the union of two
             // rectangular lattices p × p√3 (offset by (p/2, p√3/2)): the nearer of their two nearest sites.
             let sx: number, sy: number
@@ -159,7 +167,7 @@ export function traceRange(
             } else {
               sx = Math.round(x * invPitch) * pitch; sy = Math.round(y * invPitch) * pitch
             }
-            x -= sx; y -= sy
+            x -= sx; y -= sy; ox += sx; oy += sy
             if (x * x + y * y < a2) {
               // lens base: substrate → lens material
               if (nL !== nS) {
@@ -167,7 +175,7 @@ export function traceRange(
                 const sin2T = eta * eta * (1 - dz * dz)
                 if (sin2T >= 1) { dz = -dz; break }
                 const cosT = Math.sqrt(1 - sin2T)
-                if (!noFresnel && nextUniform(rng) < fresnelR(dz, cosT, nS, nL)) { dz = -dz; break }
+                if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, nL)) { dz = -dz; break }
                 dx *= eta; dy *= eta; dz = cosT
               }
               med = MED_LENS
@@ -185,7 +193,7 @@ export function traceRange(
               break
             }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && nextUniform(rng) < fresnelR(dz, cosT, nS, 1)) { dz = -dz; break }
+            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, 1)) { dz = -dz; break }
             dx *= eta; dy *= eta; dz = cosT
             if (!hasLens) { end = T_EXTRACTED; break }
             med = MED_AIR
@@ -194,10 +202,11 @@ export function traceRange(
           break
         }
         case MED_LENS: {
-          const tS = capHit(x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
+          capHitTo(hit, x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
+          const tS = hit[0]!
           const tB = dz < 0 ? (tUm - z) / dz : Infinity
           if (tS > 0 && tS < tB) {
-            if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * tS) { end = T_SUBSTRATE; break }
+            if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tS) { end = T_SUBSTRATE; break }
             x += dx * tS; y += dy * tS; z += dz * tS
             // outward normal (see geometry.ts)
             let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
@@ -206,7 +215,7 @@ export function traceRange(
             const cosI = dx * nx + dy * ny + dz * nz
             const eta = nL
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1 || (!noFresnel && nextUniform(rng) < fresnelR(cosI, Math.sqrt(1 - sin2T), nL, 1))) {
+            if (sin2T >= 1 || (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nL, 1))) {
               dx -= 2 * cosI * nx; dy -= 2 * cosI * ny; dz -= 2 * cosI * nz
               onCap = true
               break
@@ -219,7 +228,7 @@ export function traceRange(
             break
           }
           if (tB === Infinity) { end = T_UNRESOLVED; break } // no exit found (numerically degenerate ray)
-          if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * tB) { end = T_SUBSTRATE; break }
+          if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tB) { end = T_SUBSTRATE; break }
           x += dx * tB; y += dy * tB; z = tUm
           if (nL !== nS) {
             const cosI = -dz
@@ -227,7 +236,7 @@ export function traceRange(
             const sin2T = eta * eta * (1 - cosI * cosI)
             if (sin2T >= 1) { dz = cosI; onCap = false; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, nL, nS)) { dz = cosI; onCap = false; break }
+            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nL, nS)) { dz = cosI; onCap = false; break }
             dx *= eta; dy *= eta; dz = -cosT
           }
           med = MED_SUBSTRATE
@@ -245,20 +254,20 @@ export function traceRange(
             const cosI = -dz
             const eta = 1 / nS
             const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-            if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, 1, nS)) { dz = cosI; excludeSelf = false; break }
+            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nS)) { dz = cosI; excludeSelf = false; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_SUBSTRATE
             break
           }
           // a cap: move the origin to its site
-          x -= hit[1]!; y -= hit[2]!
+          x -= hit[1]!; y -= hit[2]!; ox += hit[1]!; oy += hit[2]!
           let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
           const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
           nx *= inv; ny *= inv; nz *= inv
           const cosI = -(dx * nx + dy * ny + dz * nz)
           const eta = 1 / nL
           const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-          if (!noFresnel && nextUniform(rng) < fresnelR(cosI, cosT, 1, nL)) {
+          if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nL)) {
             dx += 2 * cosI * nx; dy += 2 * cosI * ny; dz += 2 * cosI * nz
             excludeSelf = true // a convex cap cannot be met twice by a straight ray
             break
@@ -283,6 +292,15 @@ export function traceRange(
         let bp = (ph * RAD_TO_PHI_BIN) | 0
         if (bp >= PHI_BINS) bp = PHI_BINS - 1
         tally[T_THETA + bt] = tally[T_THETA + bt]! + 1
+        if (source !== SOURCE_EXTENDED) {
+          // finite pixel: does the ray leave the device within the pixel's footprint?
+          const ax = x + ox, ay = y + oy
+          const inside = source === SOURCE_DISC ? ax * ax + ay * ay <= srcA * srcA : Math.abs(ax) <= 0.5 * srcA && Math.abs(ay) <= 0.5 * srcB
+          if (inside) {
+            tally[T_PIXEL_EXTRACTED] = tally[T_PIXEL_EXTRACTED]! + 1
+            if (bt < PIXEL_AXIS_BINS) tally[T_PIXEL_AXIS] = tally[T_PIXEL_AXIS]! + 1
+          }
+        }
         tally[T_MAP + bt * PHI_BINS + bp] = tally[T_MAP + bt * PHI_BINS + bp]! + 1
         break
       }
@@ -301,15 +319,19 @@ export function traceRange(
   tally[T_TRAPPED] = tally[T_TRAPPED]! + nTrap
   tally[T_UNRESOLVED] = tally[T_UNRESOLVED]! + nUnres
   tally[T_EVENTS] = tally[T_EVENTS]! + nEvents
+  if (source !== SOURCE_EXTENDED) tally[T_PIXEL_RAYS] = tally[T_PIXEL_RAYS]! + done
   return done
 }
 
-/** Averaged Fresnel power reflectance (Rs + Rp)/2 from both cosines (interfaces.ts, inlined here). */
-function fresnelR(cosI: number, cosT: number, n1: number, n2: number): number {
+/**
+ * Fresnel decision: reflect when u < (Rs + Rp)/2 (interfaces.ts). Returns a boolean, not R: V8 boxes a double
+ * returned from a call it did not inline, and the tracer's inlining budget is spent long before its last call site.
+ */
+function fresnelReflects(u: number, cosI: number, cosT: number, n1: number, n2: number): boolean {
   const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
   const rs = (a - b) / (a + b)
   const rp = (c - d) / (c + d)
-  return 0.5 * (rs * rs + rp * rp)
+  return u < 0.5 * (rs * rs + rp * rp)
 }
 
 /**

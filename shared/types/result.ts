@@ -46,10 +46,31 @@ export const resultSchema = z.object({
     onAxisRelative: z.number(),
     onAxisRelativeStdErr: z.number(),
     onAxisConeDeg: z.number(),
-    /** Angle where luminance first falls to half its on-axis value (deg); null if it never does before 89.5°. */
+    /**
+     * Angle where luminance first falls to half its on-axis value (deg), luminance pooled over a sliding 5° window
+     * against noise, linear between window centres; null if it never does before 87.5°.
+     */
     halfLuminanceAngleDeg: z.number().nullable(),
   }),
   planar: z.object({ extraction: z.number(), extractionStdErr: z.number(), losses: lossesSchema }),
+  /**
+   * Finite pixel (disc or rectangle source) only, else null: light that leaves the device inside the pixel's
+   * footprint (lateral position where the ray leaves the last surface), as a luminance meter focused on the pixel
+   * sees it. onAxisRelative: fraction of launched rays leaving inside the footprint within θ < 5°, over a
+   * Lambertian's sin²5°; onAxisEnhancement: device over planar companion (σ as for `enhancement`).
+   */
+  pixel: z
+    .object({
+      extraction: z.number(),
+      extractionStdErr: z.number(),
+      onAxisRelative: z.number(),
+      onAxisRelativeStdErr: z.number(),
+      planarOnAxisRelative: z.number(),
+      planarOnAxisRelativeStdErr: z.number(),
+      onAxisEnhancement: z.number(),
+      onAxisEnhancementStdErr: z.number(),
+    })
+    .nullable(),
   /** extraction / planar.extraction; σ from (σE/E)² = (σ1/η1)² + (σ2/η2)² (independent streams). */
   enhancement: z.number(),
   enhancementStdErr: z.number(),

@@ -70,6 +70,28 @@ describe('published microlens enhancement (soft band, CHECKS.md)', () => {
   })
 })
 
+describe('finite pixel (CHECKS.md: a lens array over a pixel of about the lens size can lower on-axis luminance, Lin et al., Opt. Express 16, 11044 (2008))', () => {
+  it('20 µm disc pixel under 10 µm close-packed hemispheres on 20 µm glass: pixel on-axis luminance below the planar device by > 5σ, while total extraction rises — seed 703', () => {
+    const sc = scenarioSchema.parse({
+      emitter: { index: 1.7, source: { shape: 'disc', radiusUm: 10 } }, reflector: { reflectance: 0.8 },
+      substrate: { index: 1.5, thicknessUm: 20 }, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5 },
+    })
+    const r = traceScenario(sc, { rays: 200_000, seed: 703 })
+    expect(r.pixel).not.toBeNull()
+    const px = r.pixel!
+    expect(1 - px.onAxisEnhancement).toBeGreaterThan(K_SIGMA * px.onAxisEnhancementStdErr)
+    expect(r.enhancement - 1).toBeGreaterThan(K_SIGMA * r.enhancementStdErr)
+    // footprint light is part of all light
+    expect(px.extraction).toBeLessThanOrEqual(r.extraction)
+  })
+  it('an extended source has no pixel block; a planar pixel is its own reference (enhancement exactly 1)', () => {
+    expect(traceScenario(scenarioSchema.parse(example), { rays: 2000, seed: 1 }).pixel).toBeNull()
+    const flat = traceScenario(scenarioSchema.parse({ ...example, lensArray: null, emitter: { index: 1.7, source: { shape: 'rectangle', widthUm: 30, heightUm: 20 } } }), { rays: 20_000, seed: 2 })
+    expect(flat.pixel?.onAxisEnhancement).toBe(1)
+    expect(flat.pixel!.extraction).toBeGreaterThan(0)
+  })
+})
+
 /**
  * χ² homogeneity of the map under a rotation group of `order` (φ shift of PHI_BINS/order bins) and the mirror
  * φ → −φ, bin by bin; with `collapse` the θ bins are first summed into one φ profile (far more counts per bin, so

@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest'
 import { fresnelAveraged } from '../../shared/optics/interfaces'
 import { THETA_BINS, T_EXTRACTED, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from '../../shared/optics'
+import { traceScenario } from '../../shared/optics'
 import { expectWithinSigma, fraction, integrate, planarStack, traceScene } from './helpers'
 
 const N = 300_000
@@ -113,5 +114,33 @@ describe('trapped and accounting in the planar device', () => {
     expect(diff[T_EXTRACTED]! + diff[T_REFLECTOR]! + diff[T_WAVEGUIDED]! + diff[T_UNRESOLVED]!).toBe(100_000)
     // diffuse re-emission recycles substrate modes: more light out than with a mirror (common practice)
     expect(diff[T_EXTRACTED]!).toBeGreaterThan(spec[T_EXTRACTED]!)
+  })
+})
+
+describe('half-luminance angle (closed form, common practice)', () => {
+  it('I(θ) = cos³θ in air (index 1 throughout, no mirror): L ∝ cos²θ halves at 45° — within 5σ ≈ 2.5° (σ from the window and on-axis counts) — seed 1401', () => {
+    const table: Array<[number, number]> = []
+    for (let deg = 0; deg <= 90; deg++) table.push([deg, Math.cos((deg * Math.PI) / 180) ** 3])
+    const sc = planarStack({ nE: 1, nS: 1, rb: 0, profile: { table } })
+    const r = traceScenario(sc, { rays: 200_000, seed: 1401 })
+    expect(r.luminance.halfLuminanceAngleDeg).not.toBeNull()
+    // σθ ≈ √(σL,window² + (½σL,axis)²)/|dL/dθ|, |dL/dθ| = sin2θ = 1 per rad at 45° (L normalised on axis)
+    const n = 200_000
+    const frac = (a: number, b: number) => Math.cos((a * Math.PI) / 180) ** 4 - Math.cos((b * Math.PI) / 180) ** 4 // share of a cone ring: ∫cos³θ sinθ dθ ∝ cos⁴θ
+    const sWin = 1 / Math.sqrt(n * frac(42.5, 47.5)) * 0.5, sAxis = 1 / Math.sqrt(n * frac(0, 5))
+    const sigmaDeg = (Math.hypot(sWin, 0.5 * sAxis) * 180) / Math.PI
+    expectWithinSigma('half-luminance angle (deg)', r.luminance.halfLuminanceAngleDeg!, 45, sigmaDeg)
+    // and the luminance shape itself: relative L(θ)/L(0) at 60° is cos²60° = 0.25
+    const L = r.luminance
+    const avg = (L.relative[59]! + L.relative[60]!) / 2
+    const l60 = avg / L.onAxisRelative
+    const s60 = l60 * Math.hypot(Math.hypot(L.relativeStdErr[59]!, L.relativeStdErr[60]!) / 2 / avg, L.onAxisRelativeStdErr / L.onAxisRelative)
+    expectWithinSigma('L(60°)/L(0)', l60, 0.25, s60)
+  })
+  it('a Lambertian source in air keeps its luminance: no half angle (null), relative luminance ≈ 1 — seed 1402', () => {
+    const r = traceScenario(planarStack({ nE: 1, nS: 1, rb: 0, profile: 'lambertian' }), { rays: 200_000, seed: 1402 })
+    expect(r.luminance.halfLuminanceAngleDeg).toBeNull()
+    expectWithinSigma('on-axis relative luminance', r.luminance.onAxisRelative, 1, r.luminance.onAxisRelativeStdErr)
+    expect(r.extraction).toBe(1) // index 1 everywhere, all light goes up: nothing can be lost
   })
 })

@@ -1,7 +1,7 @@
 // Random streams: determinism per (seed, stream, ray), independence of neighbouring rays, uniformity.
 // Statistical checks fix their seeds (named in the test) and use 5σ bands (false-alarm 5.7e-7, CHECKS.md).
 import { describe, expect, it } from 'vitest'
-import { createRngState, mix32, nextUint32, nextUniform, seedRay } from '../../../shared/optics/rng'
+import { createRngState, fillUniforms, mix32, nextUint32, nextUniform, seedRay } from '../../../shared/optics/rng'
 
 function draws(seed: number, stream: number, ray: number, n: number): number[] {
   const st = createRngState()
@@ -18,6 +18,12 @@ describe('rng', () => {
     for (let i = 0; i < 1000; i++) nextUint32(st)
     expect(draws(5, 0, 123, 8)).toEqual(draws(5, 0, 123, 8))
     expect(draws(5, 0, 2 ** 40 + 7, 4)).toEqual(draws(5, 0, 2 ** 40 + 7, 4))
+  })
+  it('fillUniforms gives the same numbers in the same order as nextUniform (the tracer reads blocks of them)', () => {
+    const st = createRngState(), block = new Float64Array(8), got: number[] = []
+    seedRay(st, 9, 1, 77)
+    for (let k = 0; k < 3; k++) { fillUniforms(st, block); got.push(...block) }
+    expect(got).toEqual(draws(9, 1, 77, 24))
   })
   it('different seeds, streams, indices (also above 2^32) give different streams', () => {
     const a = draws(5, 0, 123, 4)
