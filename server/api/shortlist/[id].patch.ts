@@ -1,5 +1,5 @@
 // Edits the note (its author or a lead).
-import { idParamSchema } from '../../../shared/types/team'
+import { idParamSchema } from '../../../shared/types/project'
 import { shortlistNoteSchema } from '../../../shared/types/shortlist'
 
 export default defineEventHandler(async (event) => {

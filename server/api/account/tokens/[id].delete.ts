@@ -1,4 +1,4 @@
-import { idParamSchema } from '../../../../shared/types/team'
+import { idParamSchema } from '../../../../shared/types/project'
 
 export default defineEventHandler(async (event) => {
   const user = requireUser(event)

@@ -1,5 +1,5 @@
 // Only a lead marks the candidate for fabrication, with a reason; a previous choice loses its mark.
-import { idParamSchema } from '../../../../shared/types/team'
+import { idParamSchema } from '../../../../shared/types/project'
 import { shortlistChooseSchema } from '../../../../shared/types/shortlist'
 
 export default defineEventHandler(async (event) => {

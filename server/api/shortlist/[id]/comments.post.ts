@@ -1,5 +1,5 @@
 // A short comment on a shortlist note (any member).
-import { idParamSchema } from '../../../../shared/types/team'
+import { idParamSchema } from '../../../../shared/types/project'
 import { shortlistCommentSchema } from '../../../../shared/types/shortlist'
 
 export default defineEventHandler(async (event) => {

@@ -1,5 +1,5 @@
 // The project's shortlist (chosen candidate first) and its history of changes.
-import { idParamSchema } from '../../../../../shared/types/team'
+import { idParamSchema } from '../../../../../shared/types/project'
 
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

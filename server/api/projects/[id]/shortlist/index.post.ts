@@ -1,5 +1,5 @@
 // Any member bookmarks a run cell into the shortlist with a note.
-import { idParamSchema } from '../../../../../shared/types/team'
+import { idParamSchema } from '../../../../../shared/types/project'
 import { shortlistAddSchema } from '../../../../../shared/types/shortlist'
 
 export default defineEventHandler(async (event) => {
