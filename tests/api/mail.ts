@@ -1,7 +1,7 @@
 // Mail as the fake SMTP server captured it (mailbox_messages), for the api tests.
 import type pg from 'pg'
 import { parseMail, type ParsedMail } from '../../server/utils/mime'
-import { waitFor } from './workers'
+import { waitFor } from './jobs'
 
 /** Waits for the n-th (1-based) mail to `to` whose subject contains `subject`. */
 export async function waitForMail(pool: pg.Pool, to: string, subject: string, n = 1, timeoutMs = 20_000): Promise<ParsedMail> {

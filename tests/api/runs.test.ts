@@ -10,7 +10,7 @@ import { cellScenario, cellSeed, type SweepAxis } from '../../shared/types/sweep
 import { dbFromPool } from '../../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../../server/utils/demo'
 import { ApiClient, signedUpClient, validScenario } from './client'
-import { startWorkerProcess, waitFor, type WorkerProcess } from './workers'
+import { startWorkerProcess, waitFor, type WorkerProcess } from './jobs'
 
 const pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 3 })
 const workers: WorkerProcess[] = []

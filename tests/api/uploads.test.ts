@@ -7,7 +7,7 @@ import { traceScenario } from '../../shared/optics'
 import { scenarioSchema } from '../../shared/types/scenario'
 import { signedUpClient, validScenario } from './client'
 import { rawRequest } from './mail'
-import { startWorkerProcess, waitFor, type WorkerProcess } from './workers'
+import { startWorkerProcess, waitFor, type WorkerProcess } from './jobs'
 
 const baseUrl = inject('baseUrl')
 const pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 2 })

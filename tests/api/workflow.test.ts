@@ -8,7 +8,7 @@ import { dbFromPool } from '../../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../../server/utils/demo'
 import { ApiClient, signedUpClient, validScenario } from './client'
 import { linkIn, rawRequest, waitForMail } from './mail'
-import { startWorkerProcess, waitFor, type WorkerProcess } from './workers'
+import { startWorkerProcess, waitFor, type WorkerProcess } from './jobs'
 
 const baseUrl = inject('baseUrl')
 const pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 3 })
