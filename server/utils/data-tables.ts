@@ -6,6 +6,7 @@ import { and, desc, eq } from 'drizzle-orm'
 import { createError, getRequestHeader, readRawBody, type H3Event } from 'h3'
 import { dataTables, users, type DataTable } from '../db/schema'
 import { fileNameProblem, MAX_TABLE_BYTES, parseDataTable, type DataTableKind } from '../../shared/utils/csv-table'
+import { MAX_PROFILE_ROWS } from '../../shared/types/scenario'
 import type { Db } from './db'
 
 const UNIQUE_VIOLATION = '23505'
@@ -69,7 +70,12 @@ export function tableUse(t: Pick<DataTable, 'kind' | 'rows'>) {
   if (t.kind === 'angular_profile') return { angularProfile: { table: t.rows } }
   if (t.kind === 'lens_profile') {
     const first = t.rows[0]!, last = t.rows[t.rows.length - 1]!
-    return { lensArray: { shape: 'measured', profile: t.rows, diameterUm: 2 * last[0]!, sagUm: first[1]! - last[1]! } }
+    // Heights relative to the rim row: the scenario's profile starts at the land. A long trace is thinned to
+    // MAX_PROFILE_ROWS evenly spaced rows (first and last kept) so every run cell's stored scenario stays small.
+    const n = t.rows.length
+    const picked = n <= MAX_PROFILE_ROWS ? t.rows : Array.from({ length: MAX_PROFILE_ROWS }, (_, i) => t.rows[Math.round((i * (n - 1)) / (MAX_PROFILE_ROWS - 1))]!)
+    const profile = picked.map((r) => [r[0]!, r[1]! - last[1]!])
+    return { lensArray: { shape: 'measured', profile, diameterUm: 2 * last[0]!, sagUm: first[1]! - last[1]! } }
   }
   return null
 }

@@ -11,6 +11,8 @@
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
 import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHit, capHitTo, HEX_ROW_FACTOR } from './geometry'
+import { measuredCapNormal, setMeasuredCap } from './measured-cap'
+import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
   FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
@@ -78,6 +80,9 @@ export function traceRange(
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
   const cv = scene[S_CURVATURE_PER_UM]!, k1 = scene[S_K1]!
   const a2 = aUm * aUm, zv = tUm + hUm
+  // Caps of a measured profile: capHit and the normals below follow it (measured-cap.ts).
+  const measured = measuredProfileOf(scene)
+  setMeasuredCap(measured, aUm, hUm)
   const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
   const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
@@ -210,6 +215,7 @@ export function traceRange(
             x += dx * tS; y += dy * tS; z += dz * tS
             // outward normal (see geometry.ts)
             let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+            if (measured !== null) { measuredCapNormal(x, y, v3); nx = v3[0]!; ny = v3[1]!; nz = v3[2]! }
             const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
             nx *= inv; ny *= inv; nz *= inv
             const cosI = dx * nx + dy * ny + dz * nz
@@ -262,6 +268,7 @@ export function traceRange(
           // a cap: move the origin to its site
           x -= hit[1]!; y -= hit[2]!; ox += hit[1]!; oy += hit[2]!
           let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+          if (measured !== null) { measuredCapNormal(x, y, v3); nx = v3[0]!; ny = v3[1]!; nz = v3[2]! }
           const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
           nx *= inv; ny *= inv; nz *= inv
           const cosI = -(dx * nx + dy * ny + dz * nz)
