@@ -168,6 +168,7 @@ export function parseDataTable(kind: DataTableKind, bytes: Uint8Array): TablePar
     return { ok: false, status: 422, errors: [{ line: lines.length, message: `the table needs at least 2 data rows; got ${rows.length}` }] }
   }
   checkKind(kind, rows, lineOf, fail)
+  errors.sort((x, y) => x.line - y.line)
   if (extraErrors) errors.push({ line: 0, message: `… and ${extraErrors} more problem(s)` })
   if (errors.length) return { ok: false, status: 422, errors }
   return { ok: true, columns: spec.map((c) => c.name), rows }

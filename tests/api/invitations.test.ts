@@ -142,3 +142,27 @@ describe('development mailbox', () => {
     expect(m.text).toMatch(/as viewer/)
   })
 })
+
+describe('outside demo and development mode', () => {
+  it('the mailbox route and page answer 404 (a second built server, demo mode off)', async () => {
+    const { spawn } = await import('node:child_process')
+    const { join } = await import('node:path')
+    const { freePort, repoRoot } = await import('../../scripts/postgres')
+    const { waitForHttp } = await import('../../scripts/run')
+    const port = await freePort()
+    const child = spawn(process.execPath, [join(repoRoot, '.output', 'server', 'index.mjs')], {
+      env: { ...process.env, DATABASE_URL: inject('databaseUrl'), HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production', NUXT_PUBLIC_DEMO_MODE: 'false', LENSFIELD_EMBEDDED_WORKER: '0' },
+      stdio: 'ignore',
+    })
+    try {
+      const url = `http://127.0.0.1:${port}`
+      await waitForHttp(`${url}/api/health`, 30_000)
+      expect((await fetch(`${url}/api/dev/mailbox`)).status).toBe(404)
+      expect((await fetch(`${url}/dev/mailbox`)).status).toBe(404)
+      // The control: the demo-mode test server does list it.
+      expect((await fetch(`${inject('baseUrl')}/api/dev/mailbox`)).status).toBe(200)
+    } finally {
+      child.kill('SIGTERM')
+    }
+  })
+})

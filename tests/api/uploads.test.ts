@@ -137,4 +137,28 @@ describe('good uploads', () => {
     const iso = traceScenario(scenarioSchema.parse(base), { rays: 200_000, seed: 23 })
     expect(Math.abs(iso.extraction - ref.extraction)).toBeGreaterThan(5 * Math.hypot(iso.extractionStdErr, ref.extractionStdErr))
   })
+
+  it('a measured lens profile is used by a run through the queue: a sampled sphere matches the analytic cap within 5σ', async () => {
+    // D 10 µm, sag 3 µm spherical cap sampled at 0.05 µm (standard cap geometry: Rc = (a² + h²)/(2h)).
+    const a = 5, h = 3, Rc = (a * a + h * h) / (2 * h)
+    const rows: Array<[number, number]> = Array.from({ length: 101 }, (_, i) => { const r = (a * i) / 100; return [r, Number((Math.sqrt(Rc * Rc - r * r) - (Rc - h)).toFixed(9))] })
+    const up = await upload('lens_profile', lensCsv(rows), 'cap-3um.csv', 'Sampled 3 µm cap')
+    expect(up.status).toBe(201)
+    const use = (await owner.client.get(`/api/tables/${up.body.table.id}`)).body.table.use
+    const base = { ...validScenario, trace: { ...validScenario.trace, rays: 60_000, seed: 31 } }
+    const scenario = { ...base, lensArray: { ...base.lensArray, ...use.lensArray } }
+    const design = await owner.client.post(`/api/projects/${projectId}/designs`, { name: 'Measured caps', scenario })
+    expect(design.status).toBe(201)
+    expect(design.body.design.scenario.lensArray).toMatchObject({ shape: 'measured', diameterUm: 10, sagUm: 3 })
+    worker ??= startWorkerProcess(1)
+    await worker.ready
+    const run = await owner.client.post('/api/runs', { designId: design.body.design.id, seed: 31, precision: { rays: 60_000 } })
+    expect(run.status).toBe(201)
+    const done = await waitFor('measured run to finish', async () => {
+      const r = await owner.client.get(`/api/runs/${run.body.run.id}/cells/0`)
+      return r.body.cell.status === 'done' ? r.body : null
+    }, 120_000)
+    const ref = traceScenario(scenarioSchema.parse({ ...base, lensArray: { ...base.lensArray, sagUm: 3 } }), { rays: 200_000, seed: 32 })
+    expect(Math.abs(done.result.extraction - ref.extraction)).toBeLessThan(5 * Math.hypot(done.result.extractionStdErr, ref.extractionStdErr))
+  })
 })

@@ -112,6 +112,31 @@ describe('shortlist', () => {
   })
 })
 
+describe('pages', () => {
+  it('the printable report of the chosen candidate renders on the server: who chose it and why, σ, polar SVG, cautions', async () => {
+    const list = (await demo.viewer.get(`/api/projects/${demoProjectId}/shortlist`)).body
+    const chosen = list.entries.find((e: { chosen: boolean }) => e.chosen)
+    const res = await fetch(`${baseUrl}/reports/${chosen.id}`, { headers: { cookie: demo.viewer.cookie } })
+    expect(res.status).toBe(200)
+    const html = await res.text()
+    expect(html).toContain('Chosen for fabrication by Ines Marlow')
+    expect(html).toContain(chosen.chosenReason)
+    expect(html).toMatch(/Enhancement over the flat device[\s\S]*?\d\.\d+ ± \d\.\d+/)
+    expect(html).toContain('<polyline')
+    expect(html).toContain('local codes')
+  })
+
+  it('the account page, the project page with its shortlist and the mailbox render', async () => {
+    for (const path of ['/account', `/projects/${demoProjectId}`, '/dev/mailbox']) {
+      const res = await fetch(baseUrl + path, { headers: { cookie: demo.lead.cookie } })
+      expect(res.status, path).toBe(200)
+    }
+    const project = await (await fetch(`${baseUrl}/projects/${demoProjectId}`, { headers: { cookie: demo.lead.cookie } })).text()
+    expect(project).toContain('Shortlist')
+    expect(project).toContain('Embossing trial favours the lower sag')
+  })
+})
+
 describe('exports', () => {
   it('results as JSON and long-format CSV with σ, θ–φ map and losses', async () => {
     const json = await demo.viewer.get(`/api/runs/${sweepId}/cells/0/export?format=json`)
