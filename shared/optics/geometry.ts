@@ -13,8 +13,6 @@
 // and only roots with 0 ≤ s ≤ h belong to the cap (the lower branch; the schema keeps (1+k)h² ≤ a²).
 // Roots use the cancellation-free pair q = −(B + sign(B)√Δ)/2, τ1 = q/A, τ2 = C/q (also right when A → 0).
 
-import { measuredCapActive, measuredCapHit } from './measured-cap'
-
 export const HEX_ROW_FACTOR = 0.8660254037844386 // √3/2
 
 /** Site nearest to (x, y) for a lattice; writes [sx, sy, i, j] into out. */
@@ -63,8 +61,6 @@ export function capHitTo(out: Float64Array, px: number, py: number, pz: number, 
 
 function capHitValue(px: number, py: number, pz: number, dx: number, dy: number, dz: number,
   zvUm: number, cPerUm: number, k1: number, sagUm: number, onSurface: boolean): number {
-  // A measured profile (shape "measured", set per scene by the tracer) replaces the quadric; see measured-cap.ts.
-  if (measuredCapActive()) return measuredCapHit(px, py, pz, dx, dy, dz, zvUm, onSurface)
   // s may overshoot [0, h] by rounding at the rim or vertex: 1e-9·h is far above double rounding of s (~1e-16·h)
   // and far below any feature size (a hit 1e-9·h below the rim is on the land to within that).
   const sLo = -1e-9 * sagUm, sHi = sagUm * (1 + 1e-9)

@@ -11,7 +11,7 @@
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
 import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHit, capHitTo, HEX_ROW_FACTOR } from './geometry'
-import { measuredCapNormal, setMeasuredCap } from './measured-cap'
+import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
@@ -45,6 +45,8 @@ const v3 = new Float64Array(3)
 // Air search hit record: [tau, siteX, siteY].
 const hit = new Float64Array(3)
 const tested = new Int32Array(16)
+/** The scene being traced has measured caps (measured-cap.ts); set by traceRange, read by airSearch. */
+let measuredScene = false
 
 /** Ends of airSearch. */
 export const AIR_ESCAPE = 0
@@ -83,6 +85,7 @@ export function traceRange(
   // Caps of a measured profile: capHit and the normals below follow it (measured-cap.ts).
   const measured = measuredProfileOf(scene)
   setMeasuredCap(measured, aUm, hUm)
+  measuredScene = measured !== null
   const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
   const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
@@ -207,7 +210,8 @@ export function traceRange(
           break
         }
         case MED_LENS: {
-          capHitTo(hit, x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
+          if (measured !== null) hit[0] = measuredCapHit(x, y, z, dx, dy, dz, zv, onCap)
+          else capHitTo(hit, x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
           const tS = hit[0]!
           const tB = dz < 0 ? (tUm - z) / dz : Infinity
           if (tS > 0 && tS < tB) {
@@ -407,7 +411,7 @@ function airSearch(x: number, y: number, z: number, dx: number, dy: number, dz: 
       const slot = nTested & 7
       tested[2 * slot] = i; tested[2 * slot + 1] = j
       nTested++
-      const tau = capHit(x - sx, y - sy, z, dx, dy, dz, zTop, cv, k1, hUm, false)
+      const tau = measuredScene ? measuredCapHit(x - sx, y - sy, z, dx, dy, dz, zTop, false) : capHit(x - sx, y - sy, z, dx, dy, dz, zTop, cv, k1, hUm, false)
       if (tau > 0 && tau < best) { best = tau; bsx = sx; bsy = sy }
     }
     if (best < Infinity && s > best * hs + margin) break

@@ -205,12 +205,12 @@ function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail
     const first = good[0]!, last = good[good.length - 1]!
     if (first[0] !== 0) fail({ line: lineOf[0]!, column: c0, message: `line ${lineOf[0]}, ${c0}: the profile must start at the lens centre (r_um = 0), got ${first[0]}` })
     for (let i = 1; i < good.length; i++) {
-      if (good[i]![1] > good[i - 1]![1]) {
+      if (good[i]![1]! > good[i - 1]![1]!) {
         fail({ line: lineOf[i]!, column: c1, message: `line ${lineOf[i]}, ${c1}: height must not rise towards the rim (got ${good[i]![1]} after ${good[i - 1]![1]}); level or smooth the trace first` })
         break
       }
     }
-    if (!(first[1] > last[1])) fail({ line: lineOf[0]!, column: c1, message: `line ${lineOf[0]}, ${c1}: the centre must be higher than the rim (a lens with sag > 0)` })
+    if (!(first[1]! > last[1]!)) fail({ line: lineOf[0]!, column: c1, message: `line ${lineOf[0]}, ${c1}: the centre must be higher than the rim (a lens with sag > 0)` })
   }
   if (kind === 'angular_profile' && good.length === rows.length && !good.some((r) => r[1]! > 0)) {
     fail({ line: lineOf[0]!, column: c1, message: 'at least one relative intensity must be above 0' })
