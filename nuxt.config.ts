@@ -8,6 +8,10 @@ export default defineNuxtConfig({
   telemetry: false,
   typescript: { strict: true },
   nitro: {
+    routeRules: {
+      // On every response (pages, API, assets); pages also get a nonce-based CSP (server/plugins/security-headers.ts).
+      '/**': { headers: { 'X-Frame-Options': 'DENY', 'X-Content-Type-Options': 'nosniff', 'Referrer-Policy': 'same-origin' } },
+    },
     hooks: {
       // The piscina pool loads its task file by path, so the production build carries the trace worker compiled
       // to plain JS beside the server entry (.output/server/workers/trace.mjs); piscina stays an external package.

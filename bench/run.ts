@@ -2,7 +2,7 @@
 // thread and at all threads. "rays/s" counts device rays; each includes tracing its planar companion ray (the
 // enhancement's reference), exactly as a real run does. Figures depend on machine load: re-run when quiet.
 // Usage: npm run bench -- [--rays N] [name ...]
-import { availableParallelism, cpus } from 'node:os'
+import { availableParallelism, cpus, loadavg } from 'node:os'
 import { scenarioSchema } from '../shared/types/scenario'
 import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
 import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
@@ -22,6 +22,7 @@ function fmt(n: number): string {
   return Math.round(n).toLocaleString('en-US').padStart(11)
 }
 
+console.log(`load average (1 min) at the start: ${loadavg()[0]!.toFixed(2)}`)
 console.log(`Lensfield bench ${new Date().toISOString().slice(0, 10)} — ${cpus()[0]?.model ?? 'cpu'} × ${all}, node ${process.version}, ${rays} rays per figure`)
 const pools = new Map<number, Awaited<ReturnType<typeof createTracePoolReady>>>()
 for (const t of new Set([1, all])) pools.set(t, await createTracePoolReady(t))
@@ -47,3 +48,4 @@ for (const name of selected) {
   console.log(`${name.padEnd(30)} in-process (tsx, unbundled) ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
 }
 for (const p of pools.values()) await p.destroy()
+console.log(`load average (1 min) at the end: ${loadavg()[0]!.toFixed(2)} on ${all} cores — figures are depressed when it exceeds ~0.3`)

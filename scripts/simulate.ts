@@ -58,7 +58,7 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
     `losses               reflector ${pct(L.reflector, E.reflector)}, substrate ${pct(L.substrate, E.substrate)},`,
     `                     waveguided ${pct(L.waveguided, E.waveguided)}, trapped ${pct(L.trapped, E.trapped)}, unresolved ${pct(L.unresolved, E.unresolved)}`,
     `on-axis luminance    ${pm(r.luminance.onAxisRelative, r.luminance.onAxisRelativeStdErr, 3)} × Lambertian of the emitted flux (θ < ${r.luminance.onAxisConeDeg}°)`,
-    `half-luminance angle ${r.luminance.halfLuminanceAngleDeg === null ? 'none below 90°' : `${r.luminance.halfLuminanceAngleDeg.toFixed(1)}° (from 1° bins, noisy at few rays)`}`,
+    `half-luminance angle ${r.luminance.halfLuminanceAngleDeg === null ? 'none below 87.5°' : `${r.luminance.halfLuminanceAngleDeg.toFixed(1)}° ± ${(r.luminance.halfLuminanceAngleStdErrDeg ?? NaN).toFixed(1)}°`}`,
   ]
   if (r.pixel) {
     const p = r.pixel

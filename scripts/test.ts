@@ -20,6 +20,8 @@ const url = await createDatabase(server.adminUrl, dbName)
 await migrateDatabase(url)
 buildApp()
 
-const env = { ...process.env, DATABASE_URL: url, LENSFIELD_PG_ADMIN_URL: server.adminUrl, NODE_ENV: 'test' }
+const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: url, LENSFIELD_PG_ADMIN_URL: server.adminUrl, NODE_ENV: 'test' }
+// The fault tests stop and start this cluster (only when this run started it).
+if (server.dataDir && server.binDir) Object.assign(env, { LENSFIELD_PG_DATA_DIR: server.dataDir, LENSFIELD_PG_BIN_DIR: server.binDir })
 const r = spawnSync(bin('vitest'), ['run', '--config', 'tests/vitest.config.ts', ...process.argv.slice(2)], { cwd: repoRoot, stdio: 'inherit', env })
 process.exitCode = r.status ?? 1

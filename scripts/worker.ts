@@ -5,6 +5,7 @@ import { parseArgs } from 'node:util'
 import { stopBoss } from '../server/jobs/boss'
 import { defaultThreads } from '../server/jobs/pool'
 import { startBatchWorker } from '../server/jobs/worker'
+import { isDatabaseUnavailable } from '../server/utils/unavailable'
 
 const { values } = parseArgs({ options: { threads: { type: 'string' }, help: { type: 'boolean', short: 'h' } } })
 if (values.help) {
@@ -23,6 +24,17 @@ if (values.threads !== undefined) {
     process.exit(2)
   }
 }
+
+// The queue library settles jobs without awaiting; while the database is away those promises reject. They are
+// harmless (the job expires and is retried), so say so and carry on; anything else is a bug: stop.
+process.on('unhandledRejection', (err) => {
+  if (isDatabaseUnavailable(err)) {
+    console.error(`[worker] database unavailable (${(err as Error).message}); waiting for it to return`)
+    return
+  }
+  console.error('[worker] unexpected error:', err)
+  process.exit(1)
+})
 
 const worker = await startBatchWorker({ threads })
 console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)

@@ -128,16 +128,21 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
   // same window as reference), so single 1° bins near the axis, whose solid angle is tiny, cannot trigger it by
   // noise; the window at b = 2 is the on-axis cone itself. First window at or below half the on-axis value,
   // linear between window centres.
-  let half: number | null = null
+  // σ by the delta method: σθ = √(σ_window² + (σ_axis/2)²)/|dL/dθ|, the slope taken from the two windows
+  // bracketing the crossing (per degree).
+  let half: number | null = null, halfErr: number | null = null
   if (onAxis > 0) {
     const target = 0.5 * onAxis
     let prev = onAxis
     for (let b = 2; b <= THETA_BINS - 3; b++) {
       let c = 0
       for (let k = b - 2; k <= b + 2; k++) c += d[T_THETA + k]!
-      const lw = c / n / (Math.sin((b + 3) * DEG) ** 2 - Math.sin((b - 2) * DEG) ** 2)
+      const lamb = Math.sin((b + 3) * DEG) ** 2 - Math.sin((b - 2) * DEG) ** 2
+      const lw = c / n / lamb
       if (lw <= target) {
         half = b - 0.5 + (prev - target) / (prev - lw)
+        const sw = binomialErr(c, n) / lamb
+        halfErr = Math.hypot(sw, 0.5 * onAxisErr) / (prev - lw)
         break
       }
       prev = lw
@@ -197,6 +202,7 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
       onAxisRelativeStdErr: onAxisErr,
       onAxisConeDeg: ON_AXIS_CONE_DEG,
       halfLuminanceAngleDeg: half,
+      halfLuminanceAngleStdErrDeg: halfErr,
     },
     planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses },
     pixel,

@@ -51,6 +51,8 @@ export const resultSchema = z.object({
      * against noise, linear between window centres; null if it never does before 87.5°.
      */
     halfLuminanceAngleDeg: z.number().nullable(),
+    /** Its standard error (delta method from the window counts and the on-axis estimate); null with it. */
+    halfLuminanceAngleStdErrDeg: z.number().nullable(),
   }),
   planar: z.object({ extraction: z.number(), extractionStdErr: z.number(), losses: lossesSchema }),
   /**

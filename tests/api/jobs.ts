@@ -1,9 +1,12 @@
-// Real worker processes for the api tests: `scripts/worker.ts` run with tsx against the test database, exactly as
-// `npm run worker` runs it on another machine. Its output goes to test-output/ for diagnosis.
+// Helpers of the job-system tests: real worker processes (`scripts/worker.ts` under tsx's loader against the test
+// database, exactly as `npm run worker` runs it on another machine; output in test-output/), polling, and a fresh
+// team with a project and a design.
 import { spawn, type ChildProcess } from 'node:child_process'
 import { createWriteStream, mkdirSync } from 'node:fs'
 import { join } from 'node:path'
-import { inject } from 'vitest'
+import type pg from 'pg'
+import { expect, inject } from 'vitest'
+import { signedUpClient, validScenario } from './client'
 import { repoRoot } from '../../scripts/postgres'
 
 let counter = 0
@@ -54,4 +57,37 @@ export async function waitFor<T>(what: string, check: () => Promise<T | null | u
     await new Promise((r) => setTimeout(r, 200))
   }
   throw new Error(`timed out after ${timeoutMs / 1000} s waiting for ${what}`)
+}
+
+export async function teamWithDesign(tag: string, scenario: unknown = { ...validScenario, trace: { ...validScenario.trace, rays: 60_000, seed: 11 } }) {
+  const owner = await signedUpClient(tag)
+  const project = await owner.client.post('/api/projects', { teamId: owner.teamId, name: `Runs ${tag}` })
+  expect(project.status).toBe(201)
+  const design = await owner.client.post(`/api/projects/${project.body.project.id}/designs`, { name: `Caps ${tag}`, scenario })
+  expect(design.status).toBe(201)
+  return { ...owner, projectId: project.body.project.id as string, design: design.body.design as { id: string; scenario: unknown } }
+}
+
+export async function waitForRunEnd(pool: pg.Pool, id: string, timeoutMs = 120_000) {
+  return waitFor(`run ${id} to end`, async () => {
+    const r = (await pool.query('SELECT * FROM runs WHERE id = $1', [id]).catch(() => ({ rows: [] as any[] }))).rows[0]
+    return r && !['queued', 'running'].includes(r.status) ? r : null
+  }, timeoutMs)
+}
+
+/** Freezes the worker the moment it holds an unfinished batch of the run, then kills it (SIGKILL). Returns the batch. */
+export async function killMidBatch(pool: pg.Pool, w: WorkerProcess, runId: string) {
+  const inFlight = async () => (await pool.query(
+    `SELECT b.cell_id, b.batch_index FROM run_batches b JOIN run_cells c ON c.id = b.cell_id
+     WHERE c.run_id = $1 AND b.status = 'queued' AND b.attempts > 0 AND b.worker LIKE $2`, [runId, `%:${w.child.pid}`])).rows[0]
+  // Frozen first (SIGSTOP), so the batch cannot land between the look and the kill.
+  const victim = await waitFor('the worker to be tracing a batch', async () => {
+    if (!(await inFlight())) return null
+    w.child.kill('SIGSTOP')
+    const still = await inFlight()
+    if (!still) w.child.kill('SIGCONT')
+    return still
+  })
+  await w.kill('SIGKILL')
+  return victim as { cell_id: string; batch_index: number }
 }

@@ -9,8 +9,8 @@ import { scenarioSchema } from '../../shared/types/scenario'
 import { cellScenario, cellSeed, type SweepAxis } from '../../shared/types/sweep'
 import { dbFromPool } from '../../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../../server/utils/demo'
-import { ApiClient, signedUpClient, validScenario } from './client'
-import { startWorkerProcess, waitFor, type WorkerProcess } from './jobs'
+import { ApiClient, signedUpClient } from './client'
+import { killMidBatch, startWorkerProcess, teamWithDesign, waitFor, waitForRunEnd as waitEnd, type WorkerProcess } from './jobs'
 
 const pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 3 })
 const workers: WorkerProcess[] = []
@@ -25,24 +25,8 @@ function worker(threads = 1) {
   return w
 }
 
-async function teamWithDesign(tag: string, scenario: unknown = { ...validScenario, trace: { ...validScenario.trace, rays: 60_000, seed: 11 } }) {
-  const owner = await signedUpClient(tag)
-  const project = await owner.client.post('/api/projects', { teamId: owner.teamId, name: `Runs ${tag}` })
-  expect(project.status).toBe(201)
-  const design = await owner.client.post(`/api/projects/${project.body.project.id}/designs`, { name: `Caps ${tag}`, scenario })
-  expect(design.status).toBe(201)
-  return { ...owner, projectId: project.body.project.id as string, design: design.body.design as { id: string; scenario: unknown } }
-}
-
-async function runRow(id: string) {
-  return (await pool.query('SELECT * FROM runs WHERE id = $1', [id])).rows[0]
-}
-
-async function waitForRunEnd(id: string, timeoutMs = 120_000) {
-  return waitFor(`run ${id} to end`, async () => {
-    const r = await runRow(id)
-    return r && !['queued', 'running'].includes(r.status) ? r : null
-  }, timeoutMs)
+function waitForRunEnd(id: string, timeoutMs = 120_000) {
+  return waitEnd(pool, id, timeoutMs)
 }
 
 const AXES: SweepAxis[] = [
@@ -153,19 +137,8 @@ describe('a sweep through the queue', () => {
     const id = created.body.sweep.id as string
     const a = worker(1)
     await a.ready
-    // Catch worker A holding a batch it has started but not finished: freeze it (SIGSTOP), confirm the batch is
-    // still open, then kill it without warning. Frozen first, so the batch cannot land between look and kill.
-    const inFlight = async () => (await pool.query(
-      `SELECT b.cell_id, b.batch_index FROM run_batches b JOIN run_cells c ON c.id = b.cell_id
-       WHERE c.run_id = $1 AND b.status = 'queued' AND b.attempts > 0 AND b.worker LIKE $2`, [id, `%:${a.child.pid}`])).rows[0]
-    const victim = await waitFor('worker A to be tracing a batch', async () => {
-      if (!(await inFlight())) return null
-      a.child.kill('SIGSTOP')
-      const still = await inFlight()
-      if (!still) a.child.kill('SIGCONT')
-      return still
-    })
-    await a.kill('SIGKILL')
+    // Catch worker A holding a batch it has started but not finished, and kill it without warning.
+    const victim = await killMidBatch(pool, a, id)
     const b = worker(1)
     await b.ready
     const run = await waitForRunEnd(id)

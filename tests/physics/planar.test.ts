@@ -130,6 +130,9 @@ describe('half-luminance angle (closed form, common practice)', () => {
     const sWin = 1 / Math.sqrt(n * frac(42.5, 47.5)) * 0.5, sAxis = 1 / Math.sqrt(n * frac(0, 5))
     const sigmaDeg = (Math.hypot(sWin, 0.5 * sAxis) * 180) / Math.PI
     expectWithinSigma('half-luminance angle (deg)', r.luminance.halfLuminanceAngleDeg!, 45, sigmaDeg)
+    // the reported σ agrees with this estimate within a factor 2 (the slope is estimated from the data)
+    expect(r.luminance.halfLuminanceAngleStdErrDeg! / sigmaDeg).toBeGreaterThan(0.5)
+    expect(r.luminance.halfLuminanceAngleStdErrDeg! / sigmaDeg).toBeLessThan(2)
     // and the luminance shape itself: relative L(θ)/L(0) at 60° is cos²60° = 0.25
     const L = r.luminance
     const avg = (L.relative[59]! + L.relative[60]!) / 2

@@ -6,6 +6,7 @@ import {
   fillFactor, radiusOfCurvatureUm, sagFromRadiusUm,
 } from '../../../shared/types/geometry'
 import { capHit, capNormal, nearestSite } from '../../../shared/optics/geometry'
+import { wrapToSite } from '../../../shared/optics/tracer'
 
 describe('spherical cap (standard geometry, CHECKS.md)', () => {
   it('D 10 µm, h 2.5 µm → Rc 6.250 µm, contact angle 53.13°; hemisphere h = r, 90°', () => {
@@ -101,5 +102,17 @@ describe('core lattice and cap intersection', () => {
       const c = conicCurvaturePerUm(10, 5, 0)
       expect(capHit(u * 5, v * 5, 0, s * Math.cos(phi), s * Math.sin(phi), mu, 5, c, 1, 5, false)).toBeGreaterThan(0)
     }), { seed: 13 })
+  })
+})
+
+describe('tracer wrap to the nearest site (two rectangular sublattices) agrees with nearestSite (seed 17)', () => {
+  it('hexagonal and square, far from the origin too', () => {
+    const a = new Float64Array(4), b = new Float64Array(3)
+    fc.assert(fc.property(fc.boolean(), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: 0.5, max: 50, noNaN: true }), (hex, x, y, p) => {
+      nearestSite(hex, p, x, y, a)
+      wrapToSite(hex, p, p * Math.sqrt(3), x, y, b)
+      const da = (x - a[0]!) ** 2 + (y - a[1]!) ** 2, db = (x - b[1]!) ** 2 + (y - b[2]!) ** 2
+      expect(db).toBeCloseTo(da, 6) // ties may pick either site: compare distances
+    }), { seed: 17, numRuns: 2000 })
   })
 })
