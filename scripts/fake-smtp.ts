@@ -18,6 +18,9 @@ const MAX_MESSAGE_BYTES = 2 * 1024 * 1024
 
 export async function startFakeSmtp(databaseUrl: string, host = '127.0.0.1'): Promise<FakeSmtp> {
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 2 })
+  // An idle client dies when Postgres restarts (the fault tests stop it on purpose): log it, do not crash the host
+  // process; the next message opens a new connection.
+  pool.on('error', (err) => console.error('[mailbox] database connection lost:', err.message))
   const server = new SMTPServer({
     authOptional: true,
     disabledCommands: ['AUTH', 'STARTTLS'],
