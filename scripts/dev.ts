@@ -3,6 +3,7 @@ import pg from 'pg'
 import type { ChildProcess } from 'node:child_process'
 import { ensurePostgres, migrateDatabase, stopOnExit } from './postgres'
 import { bin, startChild } from './run'
+import { startFakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { loadDemoData } from '../server/utils/demo'
 
@@ -17,9 +18,12 @@ const pool = new pg.Pool({ connectionString: db.url, max: 2 })
 await loadDemoData(dbFromPool(pool))
 await pool.end()
 
+// Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.
+const mailbox = process.env.LENSFIELD_SMTP_HOST ? undefined : await startFakeSmtp(db.url)
 nuxt = startChild(bin('nuxt'), ['dev', '--host', process.env.HOST ?? '127.0.0.1', ...process.argv.slice(2)], {
   ...process.env,
   DATABASE_URL: db.url,
   NUXT_PUBLIC_DEMO_MODE: 'true',
+  ...mailbox?.env,
 })
 nuxt.on('exit', (code) => process.exit(code ?? 1))

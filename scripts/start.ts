@@ -4,14 +4,17 @@ import pg from 'pg'
 import { join } from 'node:path'
 import { ensurePostgres, freePort, migrateDatabase, portIsFree, repoRoot, stopOnExit } from './postgres'
 import { buildApp, startChild, waitForHttp } from './run'
+import { startFakeSmtp, type FakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../server/utils/demo'
 import type { ChildProcess } from 'node:child_process'
 
 let app: ChildProcess | undefined
+let mailbox: FakeSmtp | undefined
 const db = await ensurePostgres({ database: 'lensfield' })
 stopOnExit(() => {
   if (app && app.exitCode === null) app.kill('SIGTERM')
+  void mailbox?.close()
   db.stop()
 })
 
@@ -20,6 +23,9 @@ const pool = new pg.Pool({ connectionString: db.url, max: 2 })
 await loadDemoData(dbFromPool(pool))
 await pool.end()
 console.log('[demo] demo data loaded')
+
+// Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.
+if (!process.env.LENSFIELD_SMTP_HOST) mailbox = await startFakeSmtp(db.url)
 
 buildApp()
 
@@ -33,6 +39,8 @@ app = startChild(process.execPath, [join(repoRoot, '.output', 'server', 'index.m
   PORT: String(port),
   NODE_ENV: 'production',
   NUXT_PUBLIC_DEMO_MODE: 'true',
+  ...mailbox?.env,
+  LENSFIELD_PUBLIC_URL: process.env.LENSFIELD_PUBLIC_URL ?? `http://${host.includes(':') ? `[${host}]` : host}:${port}`,
 })
 app.on('exit', (code, signal) => {
   console.log(`[start] app server ended (${signal ?? `exit ${code}`})`)
@@ -47,5 +55,5 @@ Lensfield is running at ${url}
 Demo accounts (team "Tallowby Luminous Panels"):
 ${DEMO_USERS.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(34)} password: ${u.password}`).join('\n')}
 
-Press Ctrl-C to stop the app and its database server.
+${mailbox ? `Mail is captured (nothing is delivered): ${url}/dev/mailbox\n\n` : ''}Press Ctrl-C to stop the app and its database server.
 `)

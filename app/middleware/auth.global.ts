@@ -1,9 +1,12 @@
 // Every page but sign-in/sign-up needs a session; signed-in users skip the sign-in pages.
 const PUBLIC_PAGES = new Set(['/sign-in', '/sign-up'])
+// Reachable signed in or out: links from mails, and the development mailbox that shows them.
+const OPEN_PREFIXES = ['/invitations/', '/reset-password', '/dev/mailbox']
 
 export default defineNuxtRouteMiddleware(async (to) => {
   const me = useSessionUser()
   if (!me.value) await refreshSessionUser()
+  if (OPEN_PREFIXES.some((p) => to.path.startsWith(p))) return
   if (PUBLIC_PAGES.has(to.path)) {
     if (me.value) return navigateTo('/projects')
     return

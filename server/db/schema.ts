@@ -1,7 +1,7 @@
 // Lensfield's relational schema. Row types are inferred from here ($inferSelect); never write them twice.
 // users/sessions follow the column names lucia's PostgreSQL adapter queries (id, user_id, expires_at).
 import { sql } from 'drizzle-orm'
-import { bigint, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import { bigint, boolean, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
 export const ROLES = roleEnum.enumValues
@@ -168,3 +168,113 @@ export type Team = typeof teams.$inferSelect
 export type Membership = typeof memberships.$inferSelect
 export type Project = typeof projects.$inferSelect
 export type Design = typeof designs.$inferSelect
+
+// ── Team workflow: invitations, e-mail, tokens, shortlist, uploaded tables ─────────────────────────────────────
+// Secrets (invitation links, reset links, API tokens) are stored only as the SHA-256 of a 32-byte random value: a
+// stolen database copy does not open any of them, and a 256-bit random value needs no slow hash.
+
+/** Mail captured by the fake SMTP server (development, demo and tests only; scripts/fake-smtp.ts writes here). */
+export const mailboxMessages = pgTable('mailbox_messages', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  mailFrom: text('mail_from').notNull(),
+  rcptTo: jsonb('rcpt_to').$type<string[]>().notNull(),
+  subject: text('subject').notNull().default(''),
+  /** The whole RFC 5322 message as received. */
+  raw: text('raw').notNull(),
+  receivedAt: timestamp('received_at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('mailbox_messages_received_idx').on(t.receivedAt)])
+
+export const invitations = pgTable('invitations', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  teamId: uuid('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  email: text('email').notNull(),
+  role: roleEnum('role').notNull(),
+  tokenHash: text('token_hash').notNull(),
+  invitedBy: text('invited_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+  acceptedAt: timestamp('accepted_at', { withTimezone: true }),
+  acceptedBy: text('accepted_by').references(() => users.id, { onDelete: 'set null' }),
+  revokedAt: timestamp('revoked_at', { withTimezone: true }),
+  revokedBy: text('revoked_by').references(() => users.id, { onDelete: 'set null' }),
+}, (t) => [uniqueIndex('invitations_token_key').on(t.tokenHash), index('invitations_team_idx').on(t.teamId, t.createdAt)])
+
+export const passwordResets = pgTable('password_resets', {
+  tokenHash: text('token_hash').primaryKey(),
+  userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
+  usedAt: timestamp('used_at', { withTimezone: true }),
+}, (t) => [index('password_resets_user_idx').on(t.userId)])
+
+export const apiTokens = pgTable('api_tokens', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  userId: text('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  name: text('name').notNull(),
+  tokenHash: text('token_hash').notNull(),
+  /** The first characters of the token, shown in the account page so a user can tell tokens apart. */
+  prefix: text('prefix').notNull(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  lastUsedAt: timestamp('last_used_at', { withTimezone: true }),
+  revokedAt: timestamp('revoked_at', { withTimezone: true }),
+}, (t) => [uniqueIndex('api_tokens_hash_key').on(t.tokenHash), index('api_tokens_user_idx').on(t.userId)])
+
+/** A bookmarked run cell (a single run's only cell or one grid point of a sweep) with its proposer's note. */
+export const shortlistEntries = pgTable('shortlist_entries', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  projectId: uuid('project_id').notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  runId: uuid('run_id').notNull().references(() => runs.id, { onDelete: 'cascade' }),
+  cellIndex: integer('cell_index').notNull(),
+  note: text('note').notNull().default(''),
+  authorId: text('author_id').references(() => users.id, { onDelete: 'set null' }),
+  chosen: boolean('chosen').notNull().default(false),
+  chosenReason: text('chosen_reason'),
+  chosenBy: text('chosen_by').references(() => users.id, { onDelete: 'set null' }),
+  chosenAt: timestamp('chosen_at', { withTimezone: true }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+  updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [
+  uniqueIndex('shortlist_entries_cell_key').on(t.projectId, t.runId, t.cellIndex),
+  // At most one chosen candidate per project.
+  uniqueIndex('shortlist_entries_chosen_key').on(t.projectId).where(sql`${t.chosen}`),
+])
+
+export const shortlistComments = pgTable('shortlist_comments', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  entryId: uuid('entry_id').notNull().references(() => shortlistEntries.id, { onDelete: 'cascade' }),
+  authorId: text('author_id').references(() => users.id, { onDelete: 'set null' }),
+  body: text('body').notNull(),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('shortlist_comments_entry_idx').on(t.entryId, t.createdAt)])
+
+/** Who changed what on a project's shortlist, and when (added, note edited, chosen, unchosen, removed, commented). */
+export const shortlistEvents = pgTable('shortlist_events', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  projectId: uuid('project_id').notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  entryId: uuid('entry_id').references(() => shortlistEntries.id, { onDelete: 'set null' }),
+  actorId: text('actor_id').references(() => users.id, { onDelete: 'set null' }),
+  action: text('action').notNull(),
+  detail: jsonb('detail').notNull().default(sql`'{}'::jsonb`),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('shortlist_events_project_idx').on(t.projectId, t.createdAt)])
+
+export const dataTableKindEnum = pgEnum('data_table_kind', ['lens_profile', 'angular_profile', 'refractive_index'])
+
+/** An uploaded, validated CSV table of a project: rows as numbers in the columns of its kind. */
+export const dataTables = pgTable('data_tables', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  projectId: uuid('project_id').notNull().references(() => projects.id, { onDelete: 'cascade' }),
+  kind: dataTableKindEnum('kind').notNull(),
+  name: text('name').notNull(),
+  fileName: text('file_name').notNull(),
+  columns: jsonb('columns').$type<string[]>().notNull(),
+  rows: jsonb('rows').$type<number[][]>().notNull(),
+  rowCount: integer('row_count').notNull(),
+  uploadedBy: text('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [uniqueIndex('data_tables_project_name_key').on(t.projectId, t.kind, t.name)])
+
+export type Invitation = typeof invitations.$inferSelect
+export type ApiToken = typeof apiTokens.$inferSelect
+export type ShortlistEntry = typeof shortlistEntries.$inferSelect
+export type DataTable = typeof dataTables.$inferSelect

@@ -14,6 +14,7 @@ import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH, QUEUE_DEAD 
 import { listen } from './listen'
 import { createTracePool, defaultThreads } from './pool'
 import { batchJobs, bestCell, enqueueInTransaction, planBatches, type CellSummary } from './runs'
+import { reportRunClosed } from './run-mail'
 
 interface BatchJobData { cellId: string; batchIndex: number }
 
@@ -54,11 +55,14 @@ export function cellSummary(r: ReturnType<typeof summarize>): CellSummary {
   }
 }
 
-/** Marks the run done (or failed when no cell finished) once every cell has finished. Call inside the run lock. */
-async function finishRunIfComplete(client: pg.PoolClient, runId: string) {
+/**
+ * Marks the run done (or failed when no cell finished) once every cell has finished. Call inside the run lock.
+ * Returns true when this call closed the run (the caller reports it after its transaction commits).
+ */
+async function finishRunIfComplete(client: pg.PoolClient, runId: string): Promise<boolean> {
   const { rows: [run] } = await client.query(
     `SELECT status, figure, cells_total, cells_finished FROM runs WHERE id = $1`, [runId])
-  if (!run || !OPEN.includes(run.status) || run.cells_finished < run.cells_total) return
+  if (!run || !OPEN.includes(run.status) || run.cells_finished < run.cells_total) return false
   const { rows: cells } = await client.query(
     `SELECT cell_index, status, summary FROM run_cells WHERE run_id = $1`, [runId])
   const best = bestCell(cells.map((c) => ({ cellIndex: c.cell_index, status: c.status, summary: c.summary })), run.figure)
@@ -68,6 +72,7 @@ async function finishRunIfComplete(client: pg.PoolClient, runId: string) {
        error = CASE WHEN $2::text = 'failed' THEN 'every cell failed; see the cells for the reasons' ELSE error END
      WHERE id = $1`,
     [runId, anyDone ? 'done' : 'failed', best])
+  return true
 }
 
 async function inTransaction<T>(fn: (c: pg.PoolClient) => Promise<T>): Promise<T> {
@@ -87,7 +92,8 @@ async function inTransaction<T>(fn: (c: pg.PoolClient) => Promise<T>): Promise<T
 
 /** Adds one traced batch to its cell; returns false when the batch was already counted or the run ended. */
 export async function commitBatch(cellId: string, batchIndex: number, tallies: RunTallies, computeMs: number, worker: string): Promise<boolean> {
-  return inTransaction(async (client) => {
+  let closedRun: string | null = null
+  const counted = await inTransaction(async (client) => {
     const { rows: [cellRef] } = await client.query(`SELECT run_id FROM run_cells WHERE id = $1`, [cellId])
     if (!cellRef) return false
     const runId = cellRef.run_id as string
@@ -151,14 +157,17 @@ export async function commitBatch(cellId: string, batchIndex: number, tallies: R
       `UPDATE runs SET rays_done = rays_done + $2, rays_planned = rays_planned + $3,
          cells_finished = cells_finished + $4 WHERE id = $1`,
       [runId, rayCount * companion, addedRays * companion, finished ? 1 : 0])
-    if (finished) await finishRunIfComplete(client, runId)
+    if (finished && await finishRunIfComplete(client, runId)) closedRun = runId
     await client.query('SELECT pg_notify($1, $2)', [CHANNEL_PROGRESS, runId])
     return true
   })
+  if (closedRun) reportRunClosed(closedRun)
+  return counted
 }
 
 /** A batch that used up its retries: its cell fails with the last error, the run goes on without it. */
 export async function failBatch(cellId: string, batchIndex: number, reason: string): Promise<void> {
+  let closedRun: string | null = null
   const withdrawn = await inTransaction(async (client) => {
     const { rows: [cellRef] } = await client.query(`SELECT run_id FROM run_cells WHERE id = $1`, [cellId])
     if (!cellRef) return []
@@ -177,11 +186,12 @@ export async function failBatch(cellId: string, batchIndex: number, reason: stri
         `UPDATE run_cells SET status = 'failed', finished_at = now(), error = $2 WHERE id = $1`,
         [cellId, `batch ${batchIndex} failed after ${batch.attempts} attempt(s): ${why}`])
       await client.query(`UPDATE runs SET cells_finished = cells_finished + 1 WHERE id = $1`, [runId])
-      await finishRunIfComplete(client, runId)
+      if (await finishRunIfComplete(client, runId)) closedRun = runId
     }
     await client.query('SELECT pg_notify($1, $2)', [CHANNEL_PROGRESS, runId])
     return others.map((o) => o.job_id as string)
   })
+  if (closedRun) reportRunClosed(closedRun)
   if (withdrawn.length) {
     const boss = await useBoss()
     await boss.cancel(QUEUE_BATCH, withdrawn).catch(() => {})

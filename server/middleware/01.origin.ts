@@ -1,7 +1,10 @@
 // Refuses state-changing requests whose Origin is missing or not this host (cross-site request forgery).
+// Requests authenticated by an API token are exempt (server/utils/api-tokens.ts says why).
 import { isOriginAllowed } from '../utils/origin'
 
 export default defineEventHandler((event) => {
+  // A bearer-token request carries no ambient credential a forger could borrow (see server/utils/api-tokens.ts).
+  if (bearerToken(event) !== null) return
   const origin = getRequestHeader(event, 'origin')
   const host = getRequestHeader(event, 'host')
   if (!isOriginAllowed(event.method, origin, host)) {

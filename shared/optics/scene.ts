@@ -4,6 +4,7 @@
 import type { Scenario } from '../types/scenario'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
+import { buildProfile, type MonotoneProfile } from './profile'
 
 export const S_HAS_LENS = 0
 export const S_N_EMITTER = 1
@@ -25,6 +26,9 @@ export const S_SOURCE_A_UM = 16 // disc radius or rectangle width
 export const S_SOURCE_B_UM = 17 // rectangle height
 export const S_FRESNEL = 18 // 0 averaged, 1 none
 export const S_MAX_EVENTS = 19
+/** Measured cap profile (shape "measured"): knot count (0 for quadric caps) and offset of [u…, w…, m…]. */
+export const S_MEASURED_KNOTS = 20
+export const S_MEASURED_OFFSET = 21
 export const S_HEADER = 24
 /** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
 export const S_TABLE = S_HEADER
@@ -46,8 +50,9 @@ export type PackedScene = Float64Array
 export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): PackedScene {
   const prof = sc.emitter.angularProfile
   const tableLen = typeof prof === 'object' ? 2 * (PROFILE_GRID + 1) : 0
-  const s = new Float64Array(S_HEADER + tableLen)
   const lens = opts.planar ? null : sc.lensArray
+  const measured = lens && lens.shape === 'measured' && lens.profile ? buildProfile(lens.profile) : null
+  const s = new Float64Array(S_HEADER + tableLen + (measured ? 3 * measured.u.length : 0))
   s[S_HAS_LENS] = lens ? 1 : 0
   s[S_N_EMITTER] = sc.emitter.index
   s[S_N_SUBSTRATE] = sc.substrate.index
@@ -59,7 +64,8 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   s[S_LATTICE] = geo && geo.lattice === 'square' ? LATTICE_SQUARE : LATTICE_HEXAGONAL
   s[S_PITCH_UM] = geo ? geo.pitchUm : 1
   if (lens) {
-    const k = shapeConicConstant(lens.shape, lens.conicConstant)
+    // A measured cap ignores c and k1 (measured-cap.ts); they are the sphere's so nothing reads NaN.
+    const k = lens.shape === 'measured' ? 0 : shapeConicConstant(lens.shape, lens.conicConstant)
     s[S_N_LENS] = lens.index ?? sc.substrate.index
     s[S_LENS_RADIUS_UM] = lens.diameterUm / 2
     s[S_SAG_UM] = lens.sagUm
@@ -80,7 +86,21 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   else { s[S_SOURCE] = SOURCE_RECTANGLE; s[S_SOURCE_A_UM] = src.widthUm; s[S_SOURCE_B_UM] = src.heightUm }
   s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : FRESNEL_AVERAGED
   s[S_MAX_EVENTS] = sc.trace.maxEvents
+  if (measured) {
+    const n = measured.u.length, at = S_HEADER + tableLen
+    s[S_MEASURED_KNOTS] = n
+    s[S_MEASURED_OFFSET] = at
+    s.set(measured.u, at); s.set(measured.w, at + n); s.set(measured.m, at + 2 * n)
+  }
   return s
+}
+
+/** The measured cap profile packed in a scene, or null (quadric caps, or no lens array). */
+export function measuredProfileOf(scene: PackedScene): MonotoneProfile | null {
+  const n = scene[S_MEASURED_KNOTS]!
+  if (!(n > 0) || scene[S_HAS_LENS] === 0) return null
+  const at = scene[S_MEASURED_OFFSET]!
+  return { u: scene.subarray(at, at + n), w: scene.subarray(at + n, at + 2 * n), m: scene.subarray(at + 2 * n, at + 3 * n) }
 }
 
 /** Multiplies every length of a packed scene by `factor` (for scale-invariance checks; absorption scales as 1/L). */

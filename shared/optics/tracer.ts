@@ -11,6 +11,8 @@
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
 import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHit, capHitTo, HEX_ROW_FACTOR } from './geometry'
+import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
+import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
   FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
@@ -43,6 +45,8 @@ const v3 = new Float64Array(3)
 // Air search hit record: [tau, siteX, siteY].
 const hit = new Float64Array(3)
 const tested = new Int32Array(16)
+/** The scene being traced has measured caps (measured-cap.ts); set by traceRange, read by airSearch. */
+let measuredScene = false
 
 /** Ends of airSearch. */
 export const AIR_ESCAPE = 0
@@ -78,6 +82,10 @@ export function traceRange(
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
   const cv = scene[S_CURVATURE_PER_UM]!, k1 = scene[S_K1]!
   const a2 = aUm * aUm, zv = tUm + hUm
+  // Caps of a measured profile: capHit and the normals below follow it (measured-cap.ts).
+  const measured = measuredProfileOf(scene)
+  setMeasuredCap(measured, aUm, hUm)
+  measuredScene = measured !== null
   const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
   const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
@@ -192,7 +200,8 @@ export function traceRange(
           break
         }
         case MED_LENS: {
-          capHitTo(hit, x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
+          if (measured !== null) hit[0] = measuredCapHit(x, y, z, dx, dy, dz, zv, onCap)
+          else capHitTo(hit, x, y, z, dx, dy, dz, zv, cv, k1, hUm, onCap)
           const tS = hit[0]!
           const tB = dz < 0 ? (tUm - z) / dz : Infinity
           if (tS > 0 && tS < tB) {
@@ -200,6 +209,7 @@ export function traceRange(
             x += dx * tS; y += dy * tS; z += dz * tS
             // outward normal (see geometry.ts)
             let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+            if (measured !== null) { measuredCapNormal(x, y, v3); nx = v3[0]!; ny = v3[1]!; nz = v3[2]! }
             const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
             nx *= inv; ny *= inv; nz *= inv
             const cosI = dx * nx + dy * ny + dz * nz
@@ -252,6 +262,7 @@ export function traceRange(
           // a cap: move the origin to its site
           x -= hit[1]!; y -= hit[2]!; ox += hit[1]!; oy += hit[2]!
           let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
+          if (measured !== null) { measuredCapNormal(x, y, v3); nx = v3[0]!; ny = v3[1]!; nz = v3[2]! }
           const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
           nx *= inv; ny *= inv; nz *= inv
           const cosI = -(dx * nx + dy * ny + dz * nz)
@@ -408,7 +419,7 @@ function airSearch(x: number, y: number, z: number, dx: number, dy: number, dz: 
       const slot = nTested & 7
       tested[2 * slot] = i; tested[2 * slot + 1] = j
       nTested++
-      const tau = capHit(x - sx, y - sy, z, dx, dy, dz, zTop, cv, k1, hUm, false)
+      const tau = measuredScene ? measuredCapHit(x - sx, y - sy, z, dx, dy, dz, zTop, false) : capHit(x - sx, y - sy, z, dx, dy, dz, zTop, cv, k1, hUm, false)
       if (tau > 0 && tau < best) { best = tau; bsx = sx; bsy = sy }
     }
     if (best < Infinity && s > best * hs + margin) break

@@ -51,7 +51,33 @@ export const substrateSchema = z.object({
   absorptionPerMm: z.number().min(0).max(1e4).default(0),
 })
 
-export const lensShapeSchema = z.enum(['spherical', 'parabolic', 'conic'])
+export const lensShapeSchema = z.enum(['spherical', 'parabolic', 'conic', 'measured'])
+
+/** Most rows a measured profile may carry inside a scenario (uploads are thinned to this; see data-tables). */
+export const MAX_PROFILE_ROWS = 5000
+
+/**
+ * A measured cap profile: [[rhoUm, heightUm], ...] from the centre (ρ = 0) outwards, heights above the land and
+ * non-increasing. It fixes the shape only: the cap is scaled to diameterUm and sagUm (shared/optics/profile.ts).
+ */
+const lensProfileSchema = z
+  .array(z.tuple([z.number().min(0).max(1e6), z.number().min(0).max(1e6)]))
+  .min(3)
+  .max(MAX_PROFILE_ROWS)
+  .superRefine((rows, ctx) => {
+    if (rows[0]![0] !== 0) ctx.addIssue({ code: 'custom', path: [0, 0], message: `must start at the lens centre, rhoUm 0: got ${rows[0]![0]}` })
+    for (let i = 1; i < rows.length; i++) {
+      if (!(rows[i]![0] > rows[i - 1]![0])) {
+        ctx.addIssue({ code: 'custom', path: [i, 0], message: `rhoUm must increase row by row: got ${rows[i]![0]} after ${rows[i - 1]![0]}` })
+        return
+      }
+      if (rows[i]![1] > rows[i - 1]![1]) {
+        ctx.addIssue({ code: 'custom', path: [i, 1], message: `heightUm must not rise towards the rim: got ${rows[i]![1]} after ${rows[i - 1]![1]}` })
+        return
+      }
+    }
+    if (!(rows[0]![1] > rows[rows.length - 1]![1])) ctx.addIssue({ code: 'custom', message: 'the centre must be higher than the rim' })
+  })
 
 export const lensArraySchema = z
   .object({
@@ -62,6 +88,8 @@ export const lensArraySchema = z
     shape: lensShapeSchema.default('spherical'),
     /** Conic constant k of the cap profile (required when shape is "conic"; 0 sphere, −1 paraboloid). */
     conicConstant: z.number().min(-1e3).max(1e3).optional(),
+    /** Measured cap profile (required when shape is "measured"). */
+    profile: lensProfileSchema.optional(),
     /** Lens material index; defaults to the substrate index. */
     index: z.number().min(1).max(4).optional(),
   })
@@ -72,6 +100,9 @@ export const lensArraySchema = z
     const a = l.diameterUm / 2
     if (l.shape === 'spherical' && l.sagUm > a) {
       ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2 for a spherical cap: got ${l.sagUm}, max ${a}` })
+    }
+    if (l.shape === 'measured' && l.profile === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['profile'], message: 'is required when shape is "measured" (upload a lens profile table)' })
     }
     if (l.shape === 'conic') {
       if (l.conicConstant === undefined) {

@@ -24,7 +24,12 @@ afterAll(async () => {
   await admin.end()
 })
 
-const TABLES = ['designs', 'memberships', 'projects', 'sessions', 'teams', 'users']
+// Every table of server/db/schema.ts, sorted.
+const TABLES = [
+  'api_tokens', 'data_tables', 'designs', 'invitations', 'mailbox_messages', 'memberships', 'password_resets',
+  'projects', 'run_batches', 'run_cells', 'runs', 'sessions', 'shortlist_comments', 'shortlist_entries',
+  'shortlist_events', 'teams', 'users',
+]
 
 describe('migrations', () => {
   it('apply to an empty database, create every table, and are a no-op the second time', async () => {

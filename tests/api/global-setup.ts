@@ -6,6 +6,7 @@ import { join } from 'node:path'
 import type { TestProject } from 'vitest/node'
 import { freePort, repoRoot } from '../../scripts/postgres'
 import { waitForHttp } from '../../scripts/run'
+import { startFakeSmtp } from '../../scripts/fake-smtp'
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -24,7 +25,11 @@ export default async function setup(project: TestProject) {
   const entry = join(repoRoot, '.output', 'server', 'index.mjs')
   if (!existsSync(entry)) throw new Error('No production build in .output/: run `npm test` (it runs `nuxt build` first).')
 
+  // The fake SMTP server stores every mail in mailbox_messages; worker processes the tests start inherit its
+  // address through process.env, so they can send the sweep-finished mail as well.
+  const mailbox = await startFakeSmtp(databaseUrl)
   const port = await freePort()
+  Object.assign(process.env, mailbox.env, { LENSFIELD_PUBLIC_URL: `http://127.0.0.1:${port}` })
   const logDir = join(repoRoot, 'test-output')
   mkdirSync(logDir, { recursive: true })
   const logFile = join(logDir, 'api-server.log')
@@ -33,6 +38,8 @@ export default async function setup(project: TestProject) {
     cwd: repoRoot,
     env: {
       ...process.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production',
+      // Demo mode on, so /dev/mailbox and its route answer.
+      NUXT_PUBLIC_DEMO_MODE: 'true',
       // Job system for tests: no embedded worker (each test starts the real worker processes it needs), small
       // batches, a short expiry and frequent queue maintenance so a killed worker's batch comes back in seconds.
       LENSFIELD_EMBEDDED_WORKER: '0',
@@ -50,6 +57,7 @@ export default async function setup(project: TestProject) {
     await waitForHttp(`${baseUrl}/api/health`, 30_000)
   } catch (err) {
     server.kill('SIGKILL')
+    await mailbox.close()
     throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`)
   }
   project.provide('baseUrl', baseUrl)
@@ -57,10 +65,11 @@ export default async function setup(project: TestProject) {
   project.provide('adminUrl', adminUrl)
 
   return async () => {
-    if (server.exitCode !== null) return
+    if (server.exitCode !== null) return mailbox.close()
     const exited = new Promise((r) => server.once('exit', r))
     server.kill('SIGTERM')
     await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))])
     if (server.exitCode === null) server.kill('SIGKILL')
+    await mailbox.close()
   }
 }

@@ -1,0 +1,9 @@
+import { idParamSchema } from '../../../../shared/types/project'
+
+export default defineEventHandler(async (event) => {
+  const user = requireUser(event)
+  requireSessionAuth(event)
+  const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
+  await revokeApiToken(useDb(), user.id, id)
+  return { ok: true }
+})

@@ -1,0 +1,5 @@
+export default defineEventHandler(async (event) => {
+  const user = requireUser(event)
+  requireSessionAuth(event)
+  return { tokens: await listApiTokens(useDb(), user.id) }
+})

@@ -1,0 +1,47 @@
+// Result exports of one run cell: JSON (everything, as the cell route returns it, plus the run's context) and a
+// long-format CSV (one value per line: section, theta_deg, phi_deg, quantity, value, std_err) that pandas, R or a
+// spreadsheet pivot reads as it is. Text that could start a spreadsheet formula is quoted with a leading ' .
+import type { TraceResult } from '../../shared/types/result'
+import type { Run } from '../db/schema'
+
+/** Neutralises text cells a spreadsheet would run as formulas (OWASP CSV injection advice). */
+export function csvText(s: string): string {
+  const oneLine = s.replace(/[\r\n]+/g, ' ')
+  const safe = /^[=+\-@\t]/.test(oneLine) ? `'${oneLine}` : oneLine
+  return /[",]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
+}
+
+const num = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '' : String(x))
+
+export function resultCsv(run: Pick<Run, 'name' | 'designName' | 'designVersion' | 'id'>, cellIndex: number, coordinates: unknown, r: TraceResult): string {
+  const out: string[] = [
+    `# Lensfield result: run ${csvText(run.name)} (${run.id}), cell ${cellIndex}, design ${csvText(run.designName)} v${run.designVersion}`,
+    `# coordinates ${csvText(JSON.stringify(coordinates))}; rays ${r.rays}; seed ${r.seed}; std_err is one standard error (1σ) of the Monte Carlo estimate`,
+    'section,theta_deg,phi_deg,quantity,value,std_err',
+  ]
+  const row = (section: string, theta: number | null, phi: number | null, q: string, v: number | null, e: number | null) =>
+    out.push(`${section},${num(theta)},${num(phi)},${q},${num(v)},${num(e)}`)
+  row('summary', null, null, 'extraction', r.extraction, r.extractionStdErr)
+  row('summary', null, null, 'enhancement', r.enhancement, r.enhancementStdErr)
+  row('summary', null, null, 'planar_extraction', r.planar.extraction, r.planar.extractionStdErr)
+  row('summary', null, null, 'on_axis_luminance_relative', r.luminance.onAxisRelative, r.luminance.onAxisRelativeStdErr)
+  row('summary', null, null, 'half_luminance_angle_deg', r.luminance.halfLuminanceAngleDeg, null)
+  for (const [k, v] of Object.entries(r.losses)) row('losses', null, null, k, v, (r.lossesStdErr as Record<string, number>)[k] ?? null)
+  const I = r.intensity
+  I.thetaCentersDeg.forEach((t, b) => {
+    row('profile', t, null, 'intensity_per_sr', I.perSteradian[b]!, I.perSteradianStdErr[b]!)
+    row('profile', t, null, 'luminance_relative', r.luminance.relative[b]!, r.luminance.relativeStdErr[b]!)
+  })
+  const { thetaBins, phiBins, phiBinWidthDeg } = I.map
+  for (let b = 0; b < thetaBins; b++) {
+    for (let p = 0; p < phiBins; p++) {
+      row('map', b + 0.5, (p + 0.5) * phiBinWidthDeg, 'intensity_per_sr', I.map.perSteradian[b * phiBins + p]!, I.map.perSteradianStdErr[b * phiBins + p]!)
+    }
+  }
+  return out.join('\n') + '\n'
+}
+
+/** A file name from free text: letters, digits, dot, dash, underscore. */
+export function downloadName(...parts: string[]): string {
+  return parts.join('-').normalize('NFKD').replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 120) || 'lensfield'
+}

@@ -1,0 +1,40 @@
+// Password reset by mail: a single-use link valid for an hour. The request route answers the same way whether or
+// not the address has an account, and does the lookup and mailing after it has answered, so neither the reply nor
+// its timing tells anyone which addresses are registered.
+import { and, eq, gt, isNull } from 'drizzle-orm'
+import { createError } from 'h3'
+import { passwordResets, users } from '../db/schema'
+import type { Db } from './db'
+import { composeMail, publicBaseUrl, sendMail } from './mail'
+import { hashPassword } from './password'
+import { hashSecret, newSecret } from './secrets'
+
+export const RESET_MINUTES = 60
+
+export async function sendPasswordReset(db: Db, email: string, baseUrl?: string): Promise<void> {
+  const [user] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, email))
+  if (!user) return
+  const token = newSecret()
+  await db.insert(passwordResets).values({ tokenHash: hashSecret(token), userId: user.id, expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000) })
+  await sendMail(composeMail(email, 'Reset your Lensfield password', [
+    `Someone (hopefully you, ${user.name}) asked to reset the password of your Lensfield account.`,
+    `The link works once, for ${RESET_MINUTES} minutes. If you did not ask for it, ignore this mail: your password stays as it is.`,
+  ], { label: 'Choose a new password', url: `${publicBaseUrl(baseUrl)}/reset-password/${token}` }))
+}
+
+/** Sets the new password and ends every session of the account; returns the user id. */
+export async function resetPassword(db: Db, token: string, password: string): Promise<string> {
+  const passwordHash = await hashPassword(password)
+  return db.transaction(async (tx) => {
+    const [row] = await tx.update(passwordResets).set({ usedAt: new Date() })
+      .where(and(eq(passwordResets.tokenHash, hashSecret(token)), isNull(passwordResets.usedAt), gt(passwordResets.expiresAt, new Date())))
+      .returning({ userId: passwordResets.userId })
+    if (!row) {
+      throw createError({ statusCode: 410, statusMessage: 'Gone', message: 'This reset link is used, expired or unknown. Ask for a new one on the sign-in page.' })
+    }
+    await tx.update(users).set({ passwordHash }).where(eq(users.id, row.userId))
+    // Other open links of the account stop working too.
+    await tx.update(passwordResets).set({ usedAt: new Date() }).where(and(eq(passwordResets.userId, row.userId), isNull(passwordResets.usedAt)))
+    return row.userId
+  })
+}

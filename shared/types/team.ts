@@ -1,0 +1,26 @@
+// Team workflow contracts: invitations, password reset, API tokens.
+import { z } from 'zod'
+import { emailSchema, signUpSchema, ROLE_NAMES } from './account'
+
+
+export const invitationCreateSchema = z.object({
+  email: emailSchema,
+  role: z.enum(ROLE_NAMES, { error: 'role must be one of lead, designer, viewer' }),
+})
+
+/** Link secrets are 43 base64url characters (32 random bytes). */
+export const linkTokenSchema = z.string({ error: 'token is required' }).regex(/^[A-Za-z0-9_-]{20,100}$/, { error: 'token is not a Lensfield link token: open the link from the mail again' })
+
+export const invitationAcceptSchema = z.object({
+  token: linkTokenSchema,
+  /** Needed only when no account with the invited e-mail exists yet. */
+  name: signUpSchema.shape.name.optional(),
+  password: signUpSchema.shape.password.optional(),
+})
+
+export const passwordResetRequestSchema = z.object({ email: emailSchema })
+export const passwordResetConfirmSchema = z.object({ token: linkTokenSchema, password: signUpSchema.shape.password })
+
+export const apiTokenCreateSchema = z.object({
+  name: z.string({ error: 'name is required' }).trim().min(1, { error: 'name must not be empty' }).max(80, { error: 'name must be at most 80 characters' }),
+})
