@@ -163,6 +163,15 @@ export type Run = typeof runs.$inferSelect
 export type RunCell = typeof runCells.$inferSelect
 export type RunBatch = typeof runBatches.$inferSelect
 
+// Failed sign-ins in the last 15 minutes, by account key (the e-mail as typed, lower-cased) and client address;
+// server/utils/sign-in-limit.ts throttles on them. Kept in the database so every web server process counts alike.
+export const signInFailures = pgTable('sign_in_failures', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  accountKey: text('account_key').notNull(),
+  address: text('address').notNull(),
+  at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('sign_in_failures_account_idx').on(t.accountKey, t.at), index('sign_in_failures_address_idx').on(t.address, t.at)])
+
 export type User = typeof users.$inferSelect
 export type Team = typeof teams.$inferSelect
 export type Membership = typeof memberships.$inferSelect

@@ -10,10 +10,12 @@ export interface Reply<T = any> {
 
 export class ApiClient {
   cookie = ''
+  /** Sent with every request (e.g. X-Forwarded-For to act from another client address). */
+  headers: Record<string, string> = {}
   constructor(readonly baseUrl: string = inject('baseUrl')) {}
 
   async request<T = any>(method: string, path: string, body?: unknown, opts: { origin?: string | null } = {}): Promise<Reply<T>> {
-    const headers: Record<string, string> = { accept: 'application/json' }
+    const headers: Record<string, string> = { accept: 'application/json', ...this.headers }
     if (body !== undefined) headers['content-type'] = 'application/json'
     const origin = opts.origin === undefined ? this.baseUrl : opts.origin
     if (origin !== null) headers.origin = origin

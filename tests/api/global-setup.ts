@@ -43,6 +43,8 @@ export default async function setup(project: TestProject) {
       // Job system for tests: no embedded worker (each test starts the real worker processes it needs), small
       // batches, a short expiry and frequent queue maintenance so a killed worker's batch comes back in seconds.
       LENSFIELD_EMBEDDED_WORKER: '0',
+      // Lets the sign-in throttle tests act from distinct client addresses (X-Forwarded-For).
+      LENSFIELD_TRUST_PROXY: '1',
       LENSFIELD_BATCH_RAYS: '50000',
       LENSFIELD_JOB_EXPIRE_SECONDS: '8',
       LENSFIELD_JOB_RETRY_DELAY_SECONDS: '1',
