@@ -16,17 +16,8 @@ export default defineNuxtConfig({
       // The piscina pool loads its task file by path, so the production build carries the trace worker compiled
       // to plain JS beside the server entry (.output/server/workers/trace.mjs); piscina stays an external package.
       async compiled(nitro) {
-        const { build } = await import('esbuild')
-        await build({
-          entryPoints: [new URL('./workers/trace.ts', import.meta.url).pathname],
-          outfile: `${nitro.options.output.serverDir}/workers/trace.mjs`,
-          bundle: true,
-          platform: 'node',
-          format: 'esm',
-          target: 'node20',
-          external: ['piscina'],
-          logLevel: 'warning',
-        })
+        const { buildTraceWorker } = await import('./scripts/build-workers.mjs')
+        await buildTraceWorker(`${nitro.options.output.serverDir}/workers/trace.mjs`)
       },
     },
   },

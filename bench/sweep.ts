@@ -18,6 +18,8 @@ const url = await createDatabase(server.adminUrl, `lensfield_bench_${Date.now().
 await migrateDatabase(url)
 process.env.DATABASE_URL = url
 process.env.LENSFIELD_BATCH_RAYS ??= '200000'
+const { prepareWorker } = await import('../scripts/trace-pool')
+process.env.LENSFIELD_TRACE_WORKER ??= await prepareWorker()
 
 // Imported after DATABASE_URL is set: these modules read it on first use.
 const { useDb, usePool } = await import('../server/utils/db')

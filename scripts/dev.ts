@@ -3,6 +3,7 @@ import pg from 'pg'
 import type { ChildProcess } from 'node:child_process'
 import { ensurePostgres, migrateDatabase, stopOnExit } from './postgres'
 import { bin, startChild } from './run'
+import { prepareWorker } from './trace-pool'
 import { startFakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { loadDemoData } from '../server/utils/demo'
@@ -20,8 +21,11 @@ await pool.end()
 
 // Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.
 const mailbox = process.env.LENSFIELD_SMTP_HOST ? undefined : await startFakeSmtp(db.url)
+// The dev server's embedded worker loads the bundle of workers/trace.ts (rebuilt when sources are newer).
+const traceWorker = process.env.LENSFIELD_TRACE_WORKER ?? await prepareWorker()
 nuxt = startChild(bin('nuxt'), ['dev', '--host', process.env.HOST ?? '127.0.0.1', ...process.argv.slice(2)], {
   ...process.env,
+  LENSFIELD_TRACE_WORKER: traceWorker,
   DATABASE_URL: db.url,
   NUXT_PUBLIC_DEMO_MODE: 'true',
   ...mailbox?.env,

@@ -6,6 +6,7 @@ import { stopBoss } from '../server/jobs/boss'
 import { defaultThreads } from '../server/jobs/pool'
 import { startBatchWorker } from '../server/jobs/worker'
 import { isDatabaseUnavailable } from '../server/utils/unavailable'
+import { prepareWorker } from './trace-pool'
 
 const { values } = parseArgs({ options: { threads: { type: 'string' }, help: { type: 'boolean', short: 'h' } } })
 if (values.help) {
@@ -36,6 +37,8 @@ process.on('unhandledRejection', (err) => {
   process.exit(1)
 })
 
+// Run from source: the pool loads the bundle of workers/trace.ts, rebuilt here when sources are newer.
+process.env.LENSFIELD_TRACE_WORKER ??= await prepareWorker()
 const worker = await startBatchWorker({ threads })
 console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)
 let stopping = false

@@ -18,6 +18,9 @@ export function usePool(): pg.Pool {
     // A short connect timeout so /api/health reports "down" quickly instead of hanging.
     pool = new pg.Pool({ connectionString, max: 10, connectionTimeoutMillis: 3000 })
     pool.on('error', (err) => console.error('[db] idle client error:', err.message))
+    // A client in use (say, mid-transaction) when the server goes away emits 'error' on itself; unheard, that
+    // would end the process. The query in flight fails on its own and its caller handles that.
+    pool.on('connect', (client) => { client.on('error', (err) => console.error('[db] connection lost:', err.message)) })
   }
   return pool
 }
