@@ -427,5 +427,16 @@ describe('authorization matrix', () => {
     expect(byToken.body.projects.map((p: { id: string }) => p.id)).not.toContain(B.projectId)
     const members = (await accounts.viewer.client.get(`/api/teams/${A.id}/members`)).body.members.map((m: { email: string }) => m.email)
     expect(members.sort()).toEqual([accounts.lead.email, accounts.designer.email, accounts.viewer.email].sort())
+    const runs = (await accounts.lead.client.get(`/api/runs?projectId=${A.projectId}`)).body.runs.map((r: { id: string }) => r.id)
+    expect(runs).toContain(A.runId)
+    expect(runs).not.toContain(B.runId)
+  })
+
+  it('an own id does not carry another team\'s id through: B\'s run cannot be bookmarked into A\'s project', async () => {
+    for (const actor of ['lead', 'designer', 'token'] as const) {
+      expect(await send(actor, post(`/api/projects/${A.projectId}/shortlist`, { runId: B.runId, cellIndex: 0, note: 'borrowed' })), actor).toBe(404)
+    }
+    const { rows: [n] } = await pool.query('SELECT count(*)::int AS n FROM shortlist_entries WHERE run_id = $1', [B.runId])
+    expect(n.n).toBe(1) // B's own fixture entry only
   })
 })
