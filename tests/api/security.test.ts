@@ -31,3 +31,22 @@ describe('security headers', () => {
     expect(res.headers.get('referrer-policy')).toBe('same-origin')
   })
 })
+
+describe('oversize bodies', () => {
+  it('are refused with 413 from the declared length, before the body is read; an undeclared stream gets 411', async () => {
+    const base = inject('baseUrl')
+    const big = JSON.stringify({ teamId: '00000000-0000-4000-8000-000000000000', name: 'x', description: 'y'.repeat(300 * 1024) })
+    const res = await fetch(`${base}/api/projects`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: big })
+    expect(res.status).toBe(413)
+    expect((await res.json()).message).toMatch(/at most 262144 bytes/)
+    // A chunked body with no length: refused without reading it.
+    const stream = new ReadableStream({ start(c) { c.enqueue(new TextEncoder().encode('{"a":1}')); c.close() } })
+    const chunked = await fetch(`${base}/api/projects`, {
+      method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: stream, duplex: 'half',
+    } as RequestInit)
+    expect(chunked.status).toBe(411)
+    // An ordinary small body still gets as far as the session check.
+    const small = await fetch(`${base}/api/projects`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: '{}' })
+    expect(small.status).toBe(401)
+  })
+})
