@@ -5,6 +5,8 @@ import { fileURLToPath } from 'node:url'
 const root = fileURLToPath(new URL('..', import.meta.url))
 
 export default defineConfig({
+  // app/ code imports the shared folder through Nuxt's #shared alias
+  resolve: { alias: { '#shared': fileURLToPath(new URL('../shared', import.meta.url)) } },
   test: {
     root,
     projects: [

@@ -5,7 +5,7 @@
 import {
   diameterFromFillFactorUm, diameterFromRadiusAndSagUm, fillFactor, maxFillFactor, radiusOfCurvatureUm,
   sagFromRadiusUm, type LatticeKind,
-} from '../../shared/types/geometry'
+} from '#shared/types/geometry'
 
 /** The quantities a user can type. "diameter" and "fill" are one slot: fill factor is D given another way. */
 export type LensField = 'diameter' | 'fill' | 'sag' | 'radius'
