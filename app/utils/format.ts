@@ -12,7 +12,7 @@ export function withErr(value: number | null | undefined, stdErr: number | null 
   if (value === null || value === undefined || !Number.isFinite(value)) return '—'
   const e = stdErr ?? 0
   const dp = decimalsFor(e)
-  const u = unit ? (unit === '%' ? ' %' : ` ${unit}`) : ''
+  const u = unit ? (unit === '°' ? '°' : ` ${unit}`) : ''
   return `${value.toFixed(dp)} ± ${e.toFixed(dp)}${u}`
 }
 
@@ -26,7 +26,7 @@ export function pctErr(value: number | null | undefined, stdErr: number | null |
 export function num(value: number | null | undefined, unit = '', digits = 4): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '—'
   const s = String(Number(value.toPrecision(digits)))
-  return unit ? `${s} ${unit}` : s
+  return unit ? (unit === '°' ? `${s}°` : `${s} ${unit}`) : s
 }
 
 export function rays(n: number): string {
