@@ -5,35 +5,30 @@ import { defineStore } from 'pinia'
 export interface DesignDraft { baseVersion: number; name: string; scenario: unknown; savedAt: number }
 const KEY = 'lensfield.designDrafts'
 
-function load(): Record<string, DesignDraft> {
-  if (typeof sessionStorage === 'undefined') return {}
-  try { return JSON.parse(sessionStorage.getItem(KEY) ?? '{}') } catch { return {} }
-}
-
-export const useDesignDraftsStore = defineStore('designDrafts', {
-  state: () => ({ drafts: {} as Record<string, DesignDraft>, loaded: false }),
-  actions: {
-    ensureLoaded() {
-      if (this.loaded || typeof window === 'undefined') return
-      this.drafts = load()
-      this.loaded = true
-    },
-    get(id: string): DesignDraft | null {
-      this.ensureLoaded()
-      return this.drafts[id] ?? null
-    },
-    put(id: string, draft: Omit<DesignDraft, 'savedAt'>) {
-      this.ensureLoaded()
-      this.drafts[id] = { ...draft, savedAt: Date.now() }
-      this.persist()
-    },
-    drop(id: string) {
-      this.ensureLoaded()
-      delete this.drafts[id]
-      this.persist()
-    },
-    persist() {
-      if (typeof sessionStorage !== 'undefined') sessionStorage.setItem(KEY, JSON.stringify(this.drafts))
-    },
-  },
+export const useDesignDraftsStore = defineStore('designDrafts', () => {
+  const drafts = ref<Record<string, DesignDraft>>({})
+  let loaded = false
+  function ensureLoaded() {
+    if (loaded || typeof sessionStorage === 'undefined') return
+    try { drafts.value = JSON.parse(sessionStorage.getItem(KEY) ?? '{}') } catch { drafts.value = {} }
+    loaded = true
+  }
+  function persist() {
+    if (typeof sessionStorage !== 'undefined') sessionStorage.setItem(KEY, JSON.stringify(drafts.value))
+  }
+  function get(id: string): DesignDraft | null {
+    ensureLoaded()
+    return drafts.value[id] ?? null
+  }
+  function put(id: string, draft: Omit<DesignDraft, 'savedAt'>) {
+    ensureLoaded()
+    drafts.value[id] = { ...draft, savedAt: Date.now() }
+    persist()
+  }
+  function drop(id: string) {
+    ensureLoaded()
+    delete drafts.value[id]
+    persist()
+  }
+  return { drafts, get, put, drop }
 })

@@ -24,7 +24,7 @@ afterAll(async () => {
   await admin.end()
 })
 
-const TABLES = ['designs', 'memberships', 'projects', 'sessions', 'teams', 'users']
+const TABLES = ['designs', 'memberships', 'projects', 'run_batches', 'run_cells', 'runs', 'sessions', 'teams', 'users']
 
 describe('migrations', () => {
   it('apply to an empty database, create every table, and are a no-op the second time', async () => {

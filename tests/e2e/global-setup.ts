@@ -1,11 +1,13 @@
-// Global setup of the `e2e` project: loads the demo data into the throwaway database that `npm test` prepared and
-// starts the built server WITH its embedded worker (runs complete with the server alone), on a free port.
+// Global setup of the `e2e` project: creates its own database on the throwaway server that `npm test` started (the
+// api project's tests share DATABASE_URL and start their own workers; an embedded worker there would take their
+// jobs), migrates it, loads the demo data, and starts the built server WITH its embedded worker on a free port.
 import { spawn } from 'node:child_process'
 import { createWriteStream, existsSync, mkdirSync, readFileSync } from 'node:fs'
 import { join } from 'node:path'
 import pg from 'pg'
 import type { TestProject } from 'vitest/node'
-import { freePort, repoRoot } from '../../scripts/postgres'
+import { randomBytes } from 'node:crypto'
+import { createDatabase, freePort, migrateDatabase, repoRoot } from '../../scripts/postgres'
 import { waitForHttp } from '../../scripts/run'
 import { dbFromPool } from '../../server/utils/db'
 import { loadDemoData } from '../../server/utils/demo'
@@ -18,8 +20,11 @@ declare module 'vitest' {
 }
 
 export default async function setup(project: TestProject) {
-  const databaseUrl = process.env.DATABASE_URL
-  if (!databaseUrl) throw new Error('The e2e tests need a database: run them with `npm test -- --project e2e` (it starts PostgreSQL and builds the app).')
+  const adminUrl = process.env.LENSFIELD_PG_ADMIN_URL
+  if (!adminUrl) throw new Error('The e2e tests need a database server: run them with `npm test -- --project e2e` (it starts PostgreSQL and builds the app).')
+  const dbName = `lensfield_e2e_${randomBytes(4).toString('hex')}`
+  const databaseUrl = await createDatabase(adminUrl, dbName)
+  await migrateDatabase(databaseUrl)
   const entry = join(repoRoot, '.output', 'server', 'index.mjs')
   if (!existsSync(entry)) throw new Error('No production build in .output/: run `npm test` (it runs `nuxt build` first).')
 
@@ -55,10 +60,15 @@ export default async function setup(project: TestProject) {
   project.provide('e2eProjectId', projectId)
 
   return async () => {
-    if (server.exitCode !== null) return
-    const exited = new Promise((r) => server.once('exit', r))
-    server.kill('SIGTERM')
-    await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))])
-    if (server.exitCode === null) server.kill('SIGKILL')
+    if (server.exitCode === null) {
+      const exited = new Promise((r) => server.once('exit', r))
+      server.kill('SIGTERM')
+      await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))])
+      if (server.exitCode === null) server.kill('SIGKILL')
+    }
+    // on a shared server (DATABASE_URL given to npm test) leave nothing behind
+    const admin = new pg.Client({ connectionString: adminUrl })
+    await admin.connect()
+    try { await admin.query(`DROP DATABASE IF EXISTS "${dbName}" WITH (FORCE)`) } finally { await admin.end() }
   }
 }

@@ -87,6 +87,11 @@ describe('designer', () => {
   })
 
   it('runs the design, follows the progress bar and reads the headline figures and the polar plot', async () => {
+    // a traced flat device in the project, for the overlay (queued first, so it ends first on the one worker)
+    const { designs } = await (await page.request.get(`${baseUrl}/api/projects/${projectId}/designs`)).json()
+    const flat = designs.find((d: { scenario: { lensArray: unknown } }) => d.scenario.lensArray === null)
+    const started = await page.request.post(`${baseUrl}/api/runs`, { headers: { origin: baseUrl }, data: { designId: flat.id, precision: { rays: 30000 } } })
+    expect(started.status()).toBe(201)
     await page.locator('#run-rays').fill('30000')
     await Promise.all([page.waitForURL(/\/runs\//), page.getByTestId('run-start').click()])
     runUrl = page.url()
@@ -100,6 +105,7 @@ describe('designer', () => {
     // shallow caps on 1.5 glass: a gain above 1 (CHECKS.md, published bands 1.5–2.2× are for hemispheres)
     expect(Number(m![1])).toBeGreaterThan(1)
     await page.locator('[data-testid=chart-polar] canvas').first().waitFor()
+    await expect.poll(() => page.getByTestId('chart-polar').textContent()).toContain('Flat device: run')
     await page.locator('[data-testid=chart-map] canvas').first().waitFor()
     await shot(page, '04-run-result')
   })
@@ -124,6 +130,16 @@ describe('designer', () => {
     await page.getByTestId('cell-result').waitFor()
     await page.locator('[data-testid=cell-result] [data-testid=chart-polar] canvas').first().waitFor()
     await shot(page, '07-sweep-cell')
+  })
+
+  it('compares the run with a sweep cell: both in the table, curves on one plot', async () => {
+    const runId = runUrl.split('/').pop()!
+    const sweepId = sweepUrl.split('/').pop()!.split('?')[0]!
+    await page.goto(`${baseUrl}/compare?project=${projectId}&items=${runId}:0,${sweepId}:0`)
+    await expect.poll(() => page.locator('table tbody tr').count()).toBe(2)
+    expect(await page.locator('table tbody tr', { hasText: '±' }).count()).toBe(2)
+    await page.locator('figure canvas').first().waitFor()
+    await shot(page, '07b-compare')
   })
 
   it('raised no uncaught page errors or console errors', () => {
