@@ -2,6 +2,10 @@
 // The Tailwind theme lives here (no tailwind.config at the top level): Lensfield's own palette and type scale.
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
+  // Build files inside the checkout: Nuxt 4's default (node_modules/.cache/nuxt) is shared by every worktree whose
+  // node_modules is a symlink to one install, so parallel builds overwrote each other and relative imports from
+  // app/ into shared/ resolved against the wrong checkout.
+  buildDir: '.nuxt',
   modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss'],
   css: ['~/assets/css/main.css'],
   devtools: { enabled: false },

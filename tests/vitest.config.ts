@@ -1,10 +1,13 @@
-// Test projects: unit (pure, fast), physics (statistical tracer checks, slower), api (real Postgres + built server).
+// Test projects: unit (pure, fast), physics (statistical tracer checks, slower), api (real Postgres + built server),
+// e2e (Chromium against the built server with its embedded worker).
 import { defineConfig } from 'vitest/config'
 import { fileURLToPath } from 'node:url'
 
 const root = fileURLToPath(new URL('..', import.meta.url))
 
 export default defineConfig({
+  // app/ code imports the shared folder through Nuxt's #shared alias
+  resolve: { alias: { '#shared': fileURLToPath(new URL('../shared', import.meta.url)) } },
   test: {
     root,
     projects: [
@@ -20,6 +23,19 @@ export default defineConfig({
           globalSetup: ['tests/api/global-setup.ts'],
           testTimeout: 120_000,
           hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
+      {
+        extends: true,
+        test: {
+          name: 'e2e',
+          include: ['tests/e2e/**/*.test.ts'],
+          environment: 'node',
+          // Loads the demo data and starts the built server with its embedded worker; Chromium from Debian.
+          globalSetup: ['tests/e2e/global-setup.ts'],
+          testTimeout: 180_000,
+          hookTimeout: 120_000,
           fileParallelism: false,
         },
       },
