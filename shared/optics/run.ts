@@ -93,6 +93,24 @@ const DEG = Math.PI / 180
  * Lambertian source emitting exactly the launched flux (I = cosθ/π) puts there, (c/N)/(sin²θb − sin²θa); this is
  * π·I(θ)/cosθ at 1° resolution, and equals 1 for such a source.
  */
+/** Azimuth-averaged intensity (1/sr per launched ray) and relative luminance per 1° bin, each with its σ. */
+function angularProfile(t: Tally) {
+  const n = t[T_RAYS]!
+  const perSteradian: number[] = [], perSteradianStdErr: number[] = [], luminanceRelative: number[] = [], luminanceRelativeStdErr: number[] = []
+  for (let b = 0; b < THETA_BINS; b++) {
+    const ta = b * DEG, tb = (b + 1) * DEG
+    const dOmega = 2 * Math.PI * (Math.cos(ta) - Math.cos(tb))
+    const lamb = Math.sin(tb) ** 2 - Math.sin(ta) ** 2
+    const c = t[T_THETA + b]!
+    const cErr = n > 0 ? Math.sqrt(c * (1 - c / n)) : 0
+    perSteradian.push(n > 0 ? c / (n * dOmega) : 0)
+    perSteradianStdErr.push(n > 0 ? cErr / (n * dOmega) : 0)
+    luminanceRelative.push(n > 0 ? c / n / lamb : 0)
+    luminanceRelativeStdErr.push(n > 0 ? cErr / n / lamb : 0)
+  }
+  return { perSteradian, perSteradianStdErr, luminanceRelative, luminanceRelativeStdErr }
+}
+
 export function summarize(t: RunTallies, seed: number): TraceResult {
   const d = t.device
   const n = d[T_RAYS]!
@@ -204,7 +222,8 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
       halfLuminanceAngleDeg: half,
       halfLuminanceAngleStdErrDeg: halfErr,
     },
-    planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses },
+    // The companion's own angular profile, so a result page overlays the flat device of this very stack.
+    planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses, ...angularProfile(t.planar ?? d) },
     pixel,
     enhancement: enh,
     enhancementStdErr: enhErr,

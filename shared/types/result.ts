@@ -54,7 +54,18 @@ export const resultSchema = z.object({
     /** Its standard error (delta method from the window counts and the on-axis estimate); null with it. */
     halfLuminanceAngleStdErrDeg: z.number().nullable(),
   }),
-  planar: z.object({ extraction: z.number(), extractionStdErr: z.number(), losses: lossesSchema }),
+  /** The planar companion (the same stack without lenses, traced in the same run); for a planar device, itself. */
+  planar: z.object({
+    extraction: z.number(),
+    extractionStdErr: z.number(),
+    losses: lossesSchema,
+    /** Its azimuth-averaged intensity in air per 1° bin, 1/sr per launched ray, with σ (as intensity.perSteradian). */
+    perSteradian: z.array(z.number()),
+    perSteradianStdErr: z.array(z.number()),
+    /** Its luminance relative to a Lambertian of the launched flux per 1° bin, with σ (as luminance.relative). */
+    luminanceRelative: z.array(z.number()),
+    luminanceRelativeStdErr: z.array(z.number()),
+  }),
   /**
    * Finite pixel (disc or rectangle source) only, else null: light that leaves the device inside the pixel's
    * footprint (lateral position where the ray leaves the last surface), as a luminance meter focused on the pixel

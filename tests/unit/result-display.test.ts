@@ -1,7 +1,8 @@
-// Result display helpers (app/utils/format.ts, app/utils/resultMath.ts, app/utils/exportData.ts).
+// Result display helpers (app/utils/format.ts, app/utils/resultMath.ts, app/utils/exportData.ts). The
+// half-luminance angle and its σ come from the engine (tested in tests/physics).
 import { describe, expect, it } from 'vitest'
 import { pctErr, withErr, num } from '../../app/utils/format'
-import { binomialStdErr, halfAngleWithErr } from '../../app/utils/resultMath'
+import { binomialStdErr } from '../../app/utils/resultMath'
 import { toCsv } from '../../app/utils/exportData'
 
 describe('figures with σ', () => {
@@ -16,18 +17,6 @@ describe('figures with σ', () => {
   it('binomial σ: 4.0e-4 at p = 0.2, N = 10⁶ (CHECKS.md, statistics)', () => {
     expect(binomialStdErr(0.2, 1e6)).toBeCloseTo(4.0e-4, 8)
     expect(binomialStdErr(0.2, 0)).toBe(0)
-  })
-
-  it('half-luminance angle: the linear crossing, σ from the bin errors over the slope', () => {
-    // L falls linearly by 0.1 per degree from 1 at θ = 0.5°: half at 5.5°
-    const theta = Array.from({ length: 10 }, (_, i) => i + 0.5)
-    const lum = theta.map((t) => 1 - 0.1 * (t - 0.5))
-    const err = theta.map(() => 0.01)
-    const h = halfAngleWithErr(theta, lum, err, 1, 0)!
-    expect(h.value).toBeCloseTo(5.5, 12)
-    // the crossing lands on a bin centre (f = 1), so σ = 0.01 / (0.1 per degree) = 0.1°
-    expect(h.stdErr).toBeCloseTo(0.1, 12)
-    expect(halfAngleWithErr(theta, theta.map(() => 1), err, 1, 0)).toBeNull()
   })
 
   it('CSV quotes commas, quotes and line breaks (RFC 4180) and leaves non-finite numbers empty', () => {
