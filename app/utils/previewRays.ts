@@ -42,7 +42,8 @@ export function tracePreviewRays(sc: Scenario, opts: { rays?: number; seed?: num
   const hex = !lens || lens.lattice === 'hexagonal'
   const pitch = lens?.pitchUm ?? 10
   const a = lens ? lens.diameterUm / 2 : 0, h = lens?.sagUm ?? 0
-  const k = lens ? shapeConicConstant(lens.shape, lens.conicConstant) : 0
+  // A measured profile is drawn as the spherical cap of the same diameter and sag (the preview only; runs trace it).
+  const k = lens ? shapeConicConstant(lens.shape === 'measured' ? 'spherical' : lens.shape, lens.conicConstant) : 0
   const cv = lens ? conicCurvaturePerUm(lens.diameterUm, h, k) : 0
   const k1 = 1 + k, zv = t + h
   const sites = lens ? patchSites(lens.lattice, pitch, rings) : []

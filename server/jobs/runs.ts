@@ -34,6 +34,19 @@ export async function withTransaction<T>(fn: (tx: TxDb, client: pg.PoolClient) =
   }
 }
 
+/** A stored tally (bytea of little-endian Float64 counts) as a Float64Array; copied, since a Buffer from the driver
+ *  may start at any byte offset and a Float64Array needs 8-byte alignment. */
+export function tallyFromBytes(b: Buffer | null): Float64Array | null {
+  if (!b) return null
+  const copy = new Uint8Array(b.byteLength)
+  copy.set(b)
+  return new Float64Array(copy.buffer)
+}
+
+export function tallyToBytes(t: Float64Array | null): Buffer | null {
+  return t ? Buffer.from(t.buffer, t.byteOffset, t.byteLength) : null
+}
+
 /** A request the user can fix: the route turns it into a 400 (or 429 for the team limit) with this message. */
 export class RunRequestError extends Error {
   constructor(message: string, readonly statusCode = 400, readonly details: string[] = []) {

@@ -13,24 +13,12 @@ import { useBoss } from './boss'
 import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH, QUEUE_DEAD } from './config'
 import { listen } from './listen'
 import { createTracePool, defaultThreads } from './pool'
-import { batchJobs, bestCell, enqueueInTransaction, planBatches, type CellSummary } from './runs'
+import { batchJobs, bestCell, enqueueInTransaction, planBatches, tallyFromBytes, tallyToBytes, withTransaction, type CellSummary } from './runs'
 import { reportRunClosed } from './run-mail'
 
 interface BatchJobData { cellId: string; batchIndex: number }
 
 const OPEN = ['queued', 'running']
-
-function tallyFromBytes(b: Buffer | null): Float64Array | null {
-  if (!b) return null
-  // Copy into an aligned buffer: a Buffer from the driver may start at any byte offset.
-  const copy = new Uint8Array(b.byteLength)
-  copy.set(b)
-  return new Float64Array(copy.buffer)
-}
-
-function tallyToBytes(t: Float64Array | null): Buffer | null {
-  return t ? Buffer.from(t.buffer, t.byteOffset, t.byteLength) : null
-}
 
 function splitBuffer(buf: ArrayBuffer): RunTallies {
   const all = new Float64Array(buf)
@@ -75,19 +63,9 @@ async function finishRunIfComplete(client: pg.PoolClient, runId: string): Promis
   return true
 }
 
-async function inTransaction<T>(fn: (c: pg.PoolClient) => Promise<T>): Promise<T> {
-  const client = await usePool().connect()
-  try {
-    await client.query('BEGIN')
-    const r = await fn(client)
-    await client.query('COMMIT')
-    return r
-  } catch (err) {
-    await client.query('ROLLBACK').catch(() => {})
-    throw err
-  } finally {
-    client.release()
-  }
+/** One transaction on a dedicated client (shared with the run routes: server/jobs/runs.ts). */
+function inTransaction<T>(fn: (c: pg.PoolClient) => Promise<T>): Promise<T> {
+  return withTransaction((_tx, client) => fn(client))
 }
 
 /** Adds one traced batch to its cell; returns false when the batch was already counted or the run ended. */

@@ -7,7 +7,8 @@ import { useDb } from './db'
 import { parseMail } from './mime'
 
 export function requireMailboxMode(event: H3Event) {
-  const demo = useRuntimeConfig(event).public.demoMode
+  // Set from the environment (NUXT_PUBLIC_DEMO_MODE), so it may arrive as the string "true".
+  const demo: unknown = useRuntimeConfig(event).public.demoMode
   if (!(demo === true || demo === 'true') && process.env.NODE_ENV !== 'development') {
     throw createError({ statusCode: 404, statusMessage: 'Not Found', message: 'The development mailbox exists in demo and development mode only.' })
   }

@@ -5,7 +5,7 @@ import { createError, type H3Event } from 'h3'
 import type { User } from 'lucia'
 import { memberships, projects, runCells, runs, type Project, type Role, type Run } from '../db/schema'
 import { summarize, type RunTallies } from '../../shared/optics'
-import { createRun, RunRequestError, type CreateRunInput } from '../jobs/runs'
+import { createRun, RunRequestError, tallyFromBytes, type CreateRunInput } from '../jobs/runs'
 import { requireDesignRole } from './access'
 import { requireUser } from './auth'
 import { useDb } from './db'
@@ -79,20 +79,13 @@ export function listCellSummaries(runId: string) {
   }).from(runCells).where(eq(runCells.runId, runId)).orderBy(asc(runCells.cellIndex))
 }
 
-function tally(b: Buffer | null): Float64Array | null {
-  if (!b) return null
-  const copy = new Uint8Array(b.byteLength)
-  copy.set(b)
-  return new Float64Array(copy.buffer)
-}
-
 /** One cell with its full result expanded from the stored counts (null result while nothing is counted yet). */
 export async function cellResult(runId: string, cellIndex: number) {
   const [cell] = await useDb().select().from(runCells)
     .where(and(eq(runCells.runId, runId), eq(runCells.cellIndex, cellIndex)))
   if (!cell) return null
   const { deviceTally, planarTally, ...rest } = cell
-  const device = tally(deviceTally)
-  const tallies: RunTallies | null = device ? { device, planar: tally(planarTally) } : null
+  const device = tallyFromBytes(deviceTally)
+  const tallies: RunTallies | null = device ? { device, planar: tallyFromBytes(planarTally) } : null
   return { cell: rest, result: tallies ? summarize(tallies, cell.seed) : null }
 }

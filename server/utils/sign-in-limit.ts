@@ -38,7 +38,7 @@ export async function assertSignInAllowed(db: Db, event: H3Event, email: string)
   if (blocked.length === 0) return
   const until = Math.max(...blocked.map((d) => new Date(d).getTime() + WINDOW_MS))
   const seconds = Math.max(1, Math.ceil((until - Date.now()) / 1000))
-  setResponseHeader(event, 'Retry-After', String(seconds))
+  setResponseHeader(event, 'Retry-After', seconds)
   throw createError({
     statusCode: 429,
     statusMessage: 'Too Many Requests',
