@@ -1,7 +1,7 @@
 // Counter-based random streams. A ray's stream depends only on (seed, stream id, global ray index): the three are
 // hashed (murmur3 finaliser, a bijection on 32-bit words) into the 128-bit state of sfc32 (Chris Doty-Humphrey's
 // "small fast counting" generator), so any chunking of the ray range, on any number of threads, replays the same
-// numbers. Pure 32-bit integer arithmetic (Math.imul, >>> 0); no BigInt, no Math.random. Ray indices up to 2^53
+// numbers. Pure 32-bit integer arithmetic (Math.imul, >>> 0); no BigInt, no unseeded random source. Ray indices up to 2^53
 // are split into low and high words.
 
 /** State of one stream: four 32-bit words, reused across rays (no allocation per ray). */
