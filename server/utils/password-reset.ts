@@ -1,7 +1,7 @@
 // Password reset by mail: a single-use link valid for an hour. The request route answers the same way whether or
 // not the address has an account, and does the lookup and mailing after it has answered, so neither the reply nor
 // its timing tells anyone which addresses are registered.
-import { and, eq, gt, isNull } from 'drizzle-orm'
+import { and, count, eq, gt, isNull } from 'drizzle-orm'
 import { createError } from 'h3'
 import { passwordResets, users } from '../db/schema'
 import type { Db } from './db'
@@ -11,9 +11,20 @@ import { hashSecret, newSecret } from './secrets'
 
 export const RESET_MINUTES = 60
 
+/** Reset links one account may be sent per hour. */
+export const RESETS_PER_HOUR = 3
+
 export async function sendPasswordReset(db: Db, email: string, baseUrl?: string): Promise<void> {
   const [user] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, email))
   if (!user) return
+  // At most RESETS_PER_HOUR links an hour per account, so the form cannot be used to flood someone's inbox.
+  // The reply stays the same either way (it is sent before this runs), so it tells nothing.
+  const [recent] = await db.select({ n: count() }).from(passwordResets)
+    .where(and(eq(passwordResets.userId, user.id), gt(passwordResets.createdAt, new Date(Date.now() - 3_600_000))))
+  if (recent!.n >= RESETS_PER_HOUR) {
+    console.warn(`[mail] password reset for ${email}: ${recent!.n} links in the last hour already; none sent`)
+    return
+  }
   const token = newSecret()
   await db.insert(passwordResets).values({ tokenHash: hashSecret(token), userId: user.id, expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000) })
   await sendMail(composeMail(email, 'Reset your Lensfield password', [

@@ -120,6 +120,18 @@ describe('password reset', () => {
     expect(await mailCount(pool, unknown)).toBe(0)
   })
 
+  it('sends at most 3 links an hour to one account, with the same reply every time', async () => {
+    const acct = await signedUpClient('reset-flood')
+    const replies = []
+    for (let i = 0; i < 5; i++) replies.push(await new ApiClient().post('/api/auth/password-reset/request', { email: acct.email }))
+    expect(replies.map((r) => r.status)).toEqual([202, 202, 202, 202, 202])
+    expect(new Set(replies.map((r) => r.body.message)).size).toBe(1)
+    await waitForMail(pool, acct.email, 'Reset your', 3)
+    // The mails go out after each reply; give the last two requests time to (not) send.
+    await new Promise((r) => setTimeout(r, 1500))
+    expect(await mailCount(pool, acct.email)).toBe(3)
+  })
+
   it('an expired reset link is refused', async () => {
     const acct = await signedUpClient('reset-exp')
     await new ApiClient().post('/api/auth/password-reset/request', { email: acct.email })
