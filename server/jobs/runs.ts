@@ -8,7 +8,7 @@ import type pg from 'pg'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { scenarioSchema, type Scenario } from '../../shared/types/scenario'
 import {
-  axisProblems, cellSeed, expandSweep, type Figure, type SweepAxis, type SweepCell,
+  AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, type Figure, type SweepAxis, type SweepCell,
 } from '../../shared/types/sweep'
 import * as schema from '../db/schema'
 import { runBatches, runCells, runs, type Run, type RunCell } from '../db/schema'
@@ -144,7 +144,7 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
         `${fmtRays(settings.teamRayLimit)}. Use fewer rays or cells, or wait for running work to finish.`, 429)
     }
     const name = input.name ?? (input.kind === 'sweep'
-      ? `${input.design.name}: ${axes.map((a) => a.parameter.split('.').pop()).join(' × ')}`
+      ? `${input.design.name}: ${axes.map((a) => AXIS_PARAMETERS[a.parameter].label.toLowerCase()).join(' × ')}`
       : input.design.name)
     const infeasibleCount = cells.length - feasible.length
     const [run] = await tx.insert(runs).values({
