@@ -23,6 +23,8 @@ export async function launch(extraArgs: string[] = []): Promise<{ browser: Brows
 
 export async function signIn(page: Page, baseUrl: string, email: string, password: string) {
   await page.goto(`${baseUrl}/sign-in`)
+  // The button is enabled once the page is interactive; typing before that would be undone by hydration.
+  await page.locator('button[type=submit]:not([disabled])').waitFor()
   await page.fill('#email', email)
   await page.fill('#password', password)
   await Promise.all([page.waitForURL(/\/projects/), page.click('button[type=submit]')])
