@@ -17,16 +17,22 @@ export const RESETS_PER_HOUR = 3
 export async function sendPasswordReset(db: Db, email: string, baseUrl?: string): Promise<void> {
   const [user] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, email))
   if (!user) return
-  // At most RESETS_PER_HOUR links an hour per account, so the form cannot be used to flood someone's inbox.
-  // The reply stays the same either way (it is sent before this runs), so it tells nothing.
-  const [recent] = await db.select({ n: count() }).from(passwordResets)
-    .where(and(eq(passwordResets.userId, user.id), gt(passwordResets.createdAt, new Date(Date.now() - 3_600_000))))
-  if (recent!.n >= RESETS_PER_HOUR) {
-    console.warn(`[mail] password reset for ${email}: ${recent!.n} links in the last hour already; none sent`)
+  // At most RESETS_PER_HOUR links an hour per account, so the form cannot be used to flood someone's inbox. The
+  // user row is locked while counting and inserting: requests arriving together are counted one after another.
+  // The reply is the same either way (it was sent before this runs), so it tells nothing.
+  const token = newSecret()
+  const allowed = await db.transaction(async (tx) => {
+    await tx.select({ id: users.id }).from(users).where(eq(users.id, user.id)).for('update')
+    const [recent] = await tx.select({ n: count() }).from(passwordResets)
+      .where(and(eq(passwordResets.userId, user.id), gt(passwordResets.createdAt, new Date(Date.now() - 3_600_000))))
+    if (recent!.n >= RESETS_PER_HOUR) return false
+    await tx.insert(passwordResets).values({ tokenHash: hashSecret(token), userId: user.id, expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000) })
+    return true
+  })
+  if (!allowed) {
+    console.warn(`[mail] password reset for ${email}: ${RESETS_PER_HOUR} links in the last hour already; none sent`)
     return
   }
-  const token = newSecret()
-  await db.insert(passwordResets).values({ tokenHash: hashSecret(token), userId: user.id, expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000) })
   await sendMail(composeMail(email, 'Reset your Lensfield password', [
     `Someone (hopefully you, ${user.name}) asked to reset the password of your Lensfield account.`,
     `The link works once, for ${RESET_MINUTES} minutes. If you did not ask for it, ignore this mail: your password stays as it is.`,
