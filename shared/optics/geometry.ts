@@ -1,7 +1,7 @@
 // Lens lattice and cap profiles. Frame: z up; the substrate's top face is the plane z = t; a cap of base radius
 // a = D/2 and sag h sits on every lattice site with its vertex at z = t + h. Lengths in µm.
 //
-// Lattices: hexagonal with site vectors (p, 0), (p/2, p√3/2); square with (p, 0), (0, p); a site at the origin.
+// Lattices (lattice.ts): hexagonal with site vectors (p, 0), (p/2, p√3/2); square with (p, 0), (0, p).
 // Because D ≤ p, every base disc lies inside its site's Voronoi cell (inradius p/2), so "which cap is above this
 // point of the face" is "the nearest site's cap, if within a".
 //
@@ -13,30 +13,7 @@
 // and only roots with 0 ≤ s ≤ h belong to the cap (the lower branch; the schema keeps (1+k)h² ≤ a²).
 // Roots use the cancellation-free pair q = −(B + sign(B)√Δ)/2, τ1 = q/A, τ2 = C/q (also right when A → 0).
 
-export const HEX_ROW_FACTOR = 0.8660254037844386 // √3/2
-
-/** Site nearest to (x, y) for a lattice; writes [sx, sy, i, j] into out. */
-export function nearestSite(hexagonal: boolean, pitchUm: number, x: number, y: number, out: Float64Array): void {
-  if (!hexagonal) {
-    const i = Math.round(x / pitchUm), j = Math.round(y / pitchUm)
-    out[0] = i * pitchUm; out[1] = j * pitchUm; out[2] = i; out[3] = j
-    return
-  }
-  const v = y / (pitchUm * HEX_ROW_FACTOR)
-  const u = x / pitchUm - 0.5 * v
-  const i0 = Math.floor(u), j0 = Math.floor(v)
-  let bi = i0, bj = j0, bd = Infinity
-  // The nearest site is a corner of the containing rhombus (it is a vertex of the containing equilateral triangle).
-  for (let di = 0; di < 2; di++) {
-    for (let dj = 0; dj < 2; dj++) {
-      const sx = (i0 + di + 0.5 * (j0 + dj)) * pitchUm
-      const sy = (j0 + dj) * pitchUm * HEX_ROW_FACTOR
-      const d = (x - sx) * (x - sx) + (y - sy) * (y - sy)
-      if (d < bd) { bd = d; bi = i0 + di; bj = j0 + dj }
-    }
-  }
-  out[0] = (bi + 0.5 * bj) * pitchUm; out[1] = bj * pitchUm * HEX_ROW_FACTOR; out[2] = bi; out[3] = bj
-}
+export { HEX_ROW_FACTOR, nearestSite } from './lattice'
 
 /**
  * Smallest τ > 0 where the ray (px, py, pz) + τ(dx, dy, dz) meets the cap surface with vertex (0, 0, zv), or −1.

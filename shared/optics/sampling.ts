@@ -92,13 +92,4 @@ export function sampleRectangle(widthUm: number, heightUm: number, u1: number, u
   out[1] = (u2 - 0.5) * heightUm
 }
 
-/** Uniform point in the lattice cell spanned by (p, 0) and the second site vector (hexagonal or square). */
-export function sampleCell(hexagonal: boolean, pitchUm: number, u1: number, u2: number, out: Float64Array): void {
-  if (hexagonal) {
-    out[0] = pitchUm * (u1 + 0.5 * u2)
-    out[1] = pitchUm * 0.8660254037844386 * u2
-  } else {
-    out[0] = pitchUm * u1
-    out[1] = pitchUm * u2
-  }
-}
+export { sampleCell } from './lattice'

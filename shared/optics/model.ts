@@ -1,0 +1,30 @@
+// The reference tracer: the readable model (steps.ts) run over a ray range into a tally, with an optional
+// recorder of every ray's path (the browser preview uses it). Same arguments and the same tally as the fused
+// traceRange (tracer.ts), bit for bit; slower, since it favours reading over speed.
+import { createRay, resetRay } from './ray'
+import { scoreExit } from './film'
+import { launch, stackOf, traceRay, type RayRecorder } from './steps'
+import { SOURCE_EXTENDED, type PackedScene } from './scene'
+import { T_EVENTS, T_EXTRACTED, T_PIXEL_RAYS, T_RAYS, type Tally } from './tally'
+
+export type { RayRecorder } from './steps'
+
+/** Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts added); returns rayCount. */
+export function traceRangeModel(scene: PackedScene, firstRay: number, rayCount: number, seed: number, tally: Tally,
+  streamId = 0, recorder?: RayRecorder): number {
+  const st = stackOf(scene)
+  const ray = createRay()
+  for (let r = 0; r < rayCount; r++) {
+    resetRay(ray, seed, streamId, firstRay + r)
+    if (recorder !== undefined) recorder.start(firstRay + r)
+    launch(ray, st, recorder)
+    traceRay(ray, st, recorder)
+    tally[T_EVENTS] = tally[T_EVENTS]! + ray.events
+    tally[ray.end] = tally[ray.end]! + 1
+    if (ray.end === T_EXTRACTED) scoreExit(tally, ray.dx, ray.dy, ray.dz, ray.x + ray.ox, ray.y + ray.oy, st.source, st.sourceAUm, st.sourceBUm)
+    if (recorder !== undefined) recorder.finish(ray)
+  }
+  tally[T_RAYS] = tally[T_RAYS]! + rayCount
+  if (st.source !== SOURCE_EXTENDED) tally[T_PIXEL_RAYS] = tally[T_PIXEL_RAYS]! + rayCount
+  return rayCount
+}

@@ -1,0 +1,269 @@
+// The readable model of a ray's life: one function per medium, each taking the ray one event further and
+// returning the medium it is in next, or RAY_ENDED with its tally slot in ray.end. This is the reference: physics
+// lands here first, then in the fused loop (tracer.ts), and tests/unit/optics/model-equality.test.ts proves the
+// two give bit-identical tallies (the same draws from the random stream in the same order, the same arithmetic).
+// Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
+// top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts.
+import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
+import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing } from './crossings'
+import { capHit, capNormal } from './geometry'
+import { HEX_ROW_FACTOR, sampleCell, wrapToSite } from './lattice'
+import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
+import { draw, MEDIUM_AIR, MEDIUM_EMITTER, MEDIUM_LENS, MEDIUM_SUBSTRATE, RAY_ENDED, type Ray } from './ray'
+import { sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
+import {
+  FRESNEL_NONE, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
+  S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS,
+  S_N_EMITTER, S_N_LENS, S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM,
+  S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+} from './scene'
+import { T_EXTRACTED, T_REFLECTOR, T_SUBSTRATE, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from './tally'
+
+/** The packed scene read once into named fields (µm, 1/µm; indices; booleans for the modes). */
+export interface Stack {
+  scene: PackedScene
+  hasLens: boolean
+  nEmitter: number; nSubstrate: number; nLens: number
+  thicknessUm: number; absorptionPerUm: number
+  reflectance: number; diffuseFraction: number
+  hexagonal: boolean; pitchUm: number; lensRadiusUm: number; sagUm: number; curvaturePerUm: number; k1: number
+  measured: boolean
+  profile: number; source: number; sourceAUm: number; sourceBUm: number
+  fresnel: boolean
+  maxEvents: number
+}
+
+/**
+ * Reads a packed scene and makes it the one being traced (the measured-cap profile and the air search follow
+ * it: module state, as in the fused loop).
+ */
+export function stackOf(scene: PackedScene): Stack {
+  const measured = measuredProfileOf(scene)
+  setMeasuredCap(measured, scene[S_LENS_RADIUS_UM]!, scene[S_SAG_UM]!)
+  setAirSearchMeasured(measured !== null)
+  return {
+    scene,
+    hasLens: scene[S_HAS_LENS]! !== 0,
+    nEmitter: scene[S_N_EMITTER]!, nSubstrate: scene[S_N_SUBSTRATE]!, nLens: scene[S_N_LENS]!,
+    thicknessUm: scene[S_THICKNESS_UM]!, absorptionPerUm: scene[S_ABSORPTION_PER_UM]!,
+    reflectance: scene[S_REFLECTANCE]!, diffuseFraction: scene[S_DIFFUSE_FRACTION]!,
+    hexagonal: scene[S_LATTICE]! !== LATTICE_SQUARE, pitchUm: scene[S_PITCH_UM]!, lensRadiusUm: scene[S_LENS_RADIUS_UM]!,
+    sagUm: scene[S_SAG_UM]!, curvaturePerUm: scene[S_CURVATURE_PER_UM]!, k1: scene[S_K1]!,
+    measured: measured !== null,
+    profile: scene[S_PROFILE]!, source: scene[S_SOURCE]!, sourceAUm: scene[S_SOURCE_A_UM]!, sourceBUm: scene[S_SOURCE_B_UM]!,
+    fresnel: scene[S_FRESNEL]! !== FRESNEL_NONE,
+    maxEvents: scene[S_MAX_EVENTS]!,
+  }
+}
+
+/** Sees the ray's path: absolute positions (x + ox, y + oy, z) in µm, in order. */
+export interface RayRecorder {
+  /** A new ray (its index in the stream) before launch. */
+  start(rayIndex: number): void
+  /** The ray is at this point: its launch, every interface or reflector it meets, and where it is absorbed. */
+  vertex(x: number, y: number, z: number): void
+  /** The ray's life is over (ray.end holds its tally slot; ray.dx, dy, dz its last direction). */
+  finish(ray: Ray): void
+}
+
+const v3 = new Float64Array(3)
+const site = new Float64Array(3)
+
+function end(ray: Ray, slot: number): number {
+  ray.end = slot
+  return RAY_ENDED
+}
+
+function at(ray: Ray, rec: RayRecorder | undefined): void {
+  if (rec !== undefined) rec.vertex(ray.x + ray.ox, ray.y + ray.oy, ray.z)
+}
+
+/** Beer–Lambert: an exponential free path −ln(u)/α against the segment; true when the ray is absorbed on it. */
+function absorbedOn(ray: Ray, st: Stack, pathUm: number, rec: RayRecorder | undefined): boolean {
+  if (!(st.absorptionPerUm > 0)) return false
+  const free = -Math.log(draw(ray))
+  if (!(free < st.absorptionPerUm * pathUm)) return false
+  if (rec !== undefined) {
+    const s = free / st.absorptionPerUm
+    rec.vertex(ray.x + ray.ox + ray.dx * s, ray.y + ray.oy + ray.dy * s, ray.z + ray.dz * s)
+  }
+  return true
+}
+
+/** Outward unit normal of the current site's cap at the ray's position (geometry.ts; measured-cap.ts). */
+function capNormalAt(ray: Ray, st: Stack, out: Float64Array): void {
+  if (!st.measured) { capNormal(ray.x, ray.y, ray.z, st.thicknessUm + st.sagUm, st.curvaturePerUm, st.k1, out); return }
+  measuredCapNormal(ray.x, ray.y, out)
+  const nx = out[0]!, ny = out[1]!, nz = out[2]!
+  const inv = 1 / Math.sqrt(nx * nx + ny * ny + nz * nz)
+  out[0] = nx * inv; out[1] = ny * inv; out[2] = nz * inv
+}
+
+/**
+ * Launch: a position in the source (drawn even for an extended source, so streams line up between variants),
+ * then a direction from the angular profile. The ray starts in the emitter layer.
+ */
+export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
+  const u1 = draw(ray), u2 = draw(ray)
+  if (st.source === SOURCE_EXTENDED) sampleCell(st.hexagonal, st.pitchUm, u1, u2, v3)
+  else if (st.source === SOURCE_DISC) sampleDisc(st.sourceAUm, u1, u2, v3)
+  else sampleRectangle(st.sourceAUm, st.sourceBUm, u1, u2, v3)
+  ray.x = v3[0]!; ray.y = v3[1]!; ray.z = 0
+  if (st.profile === PROFILE_ISOTROPIC) sampleIsotropic(draw(ray), draw(ray), v3)
+  else if (st.profile === PROFILE_LAMBERTIAN) sampleLambertian(draw(ray), draw(ray), v3)
+  else sampleTabulated(st.scene, S_TABLE, draw(ray), draw(ray), draw(ray), v3)
+  ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+  ray.medium = MEDIUM_EMITTER
+  at(ray, rec)
+}
+
+/**
+ * Emitter layer. Going down: the reflector (absorbed with 1 − R; else cosine-weighted upward with probability
+ * diffuseFraction, else mirrored). Going up: into the substrate; TIR there leaves the ray guided in the
+ * emitter layers (waveguided); a Fresnel reflection sends it down to the reflector.
+ */
+export function emitterStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
+  if (ray.dz < 0) {
+    if (draw(ray) >= st.reflectance) return end(ray, T_REFLECTOR)
+    ray.bounces++
+    if (st.diffuseFraction > 0 && draw(ray) < st.diffuseFraction) {
+      sampleLambertian(draw(ray), draw(ray), v3)
+      ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+    } else ray.dz = -ray.dz
+    return MEDIUM_EMITTER
+  }
+  const c = flatCrossing(ray, true, st.nEmitter, st.nSubstrate, st.fresnel && st.nEmitter !== st.nSubstrate)
+  if (c === CROSS_TIR) return end(ray, T_WAVEGUIDED)
+  if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_EMITTER }
+  void rec
+  return MEDIUM_SUBSTRATE
+}
+
+/**
+ * Substrate, face to face (z is 0 or t on entry). Beer–Lambert on the way. Bottom face: back into the emitter
+ * layer (TIR or Fresnel: up again). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
+ * material (an interface only when the indices differ); else the flat land into air (with no lens array that is
+ * the exit; in the planar device with a specular reflector a TIR ray can never escape: trapped).
+ */
+export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
+  const tUm = st.thicknessUm
+  const pathUm = ray.dz > 0 ? tUm / ray.dz : -tUm / ray.dz
+  if (absorbedOn(ray, st, pathUm, rec)) return end(ray, T_SUBSTRATE)
+  // (the fused loop skips moving the ray when no result depends on its lateral position; the model always moves it)
+  if (ray.dz < 0) {
+    ray.z = 0
+    ray.x += ray.dx * pathUm; ray.y += ray.dy * pathUm
+    at(ray, rec)
+    const c = flatCrossing(ray, false, st.nSubstrate, st.nEmitter, st.fresnel && st.nEmitter !== st.nSubstrate)
+    if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
+    if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
+    return MEDIUM_EMITTER
+  }
+  ray.z = tUm
+  ray.x += ray.dx * pathUm; ray.y += ray.dy * pathUm
+  at(ray, rec)
+  if (st.hasLens) {
+    wrapToSite(st.hexagonal, st.pitchUm, 2 * st.pitchUm * HEX_ROW_FACTOR, ray.x, ray.y, site)
+    const sx = site[1]!, sy = site[2]!
+    ray.x -= sx; ray.y -= sy; ray.ox += sx; ray.oy += sy
+    if (ray.x * ray.x + ray.y * ray.y < st.lensRadiusUm * st.lensRadiusUm) {
+      if (st.nLens !== st.nSubstrate) {
+        const c = flatCrossing(ray, true, st.nSubstrate, st.nLens, st.fresnel)
+        if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
+        if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
+      }
+      ray.onCap = false
+      return MEDIUM_LENS
+    }
+  }
+  const c = flatCrossing(ray, true, st.nSubstrate, 1, st.fresnel)
+  if (c === CROSS_TIR) {
+    if (!st.hasLens && (st.diffuseFraction === 0 || st.reflectance === 0)) return end(ray, T_TRAPPED)
+    ray.dz = -ray.dz; ray.bounces++
+    return MEDIUM_SUBSTRATE
+  }
+  if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
+  if (!st.hasLens) return end(ray, T_EXTRACTED)
+  ray.excludeSelf = false
+  return MEDIUM_AIR
+}
+
+/**
+ * Lens material above a base disc (coordinates relative to its site): the cap surface or the base, whichever comes
+ * first. At the cap: refraction into air, or TIR/Fresnel back into the lens. At the base: back into the substrate
+ * (an interface when the indices differ). Beer–Lambert with the substrate's absorption on every segment.
+ */
+export function lensStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
+  const tUm = st.thicknessUm, zv = tUm + st.sagUm
+  const tS = st.measured
+    ? measuredCapHit(ray.x, ray.y, ray.z, ray.dx, ray.dy, ray.dz, zv, ray.onCap)
+    : capHit(ray.x, ray.y, ray.z, ray.dx, ray.dy, ray.dz, zv, st.curvaturePerUm, st.k1, st.sagUm, ray.onCap)
+  const tB = ray.dz < 0 ? (tUm - ray.z) / ray.dz : Infinity
+  if (tS > 0 && tS < tB) {
+    if (absorbedOn(ray, st, tS, rec)) return end(ray, T_SUBSTRATE)
+    ray.x += ray.dx * tS; ray.y += ray.dy * tS; ray.z += ray.dz * tS
+    at(ray, rec)
+    capNormalAt(ray, st, v3)
+    const c = curvedCrossing(ray, v3[0]!, v3[1]!, v3[2]!, st.nLens, 1, st.fresnel)
+    if (c !== CROSS_TRANSMIT) { ray.onCap = true; ray.bounces++; return MEDIUM_LENS }
+    ray.excludeSelf = true
+    return MEDIUM_AIR
+  }
+  if (tB === Infinity) return end(ray, T_UNRESOLVED) // no exit found (numerically degenerate ray)
+  if (absorbedOn(ray, st, tB, rec)) return end(ray, T_SUBSTRATE)
+  ray.x += ray.dx * tB; ray.y += ray.dy * tB; ray.z = tUm
+  at(ray, rec)
+  if (st.nLens !== st.nSubstrate) {
+    const c = flatCrossing(ray, false, st.nLens, st.nSubstrate, st.fresnel)
+    if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
+    if (c !== CROSS_TRANSMIT) { ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
+  }
+  return MEDIUM_SUBSTRATE
+}
+
+/**
+ * Air below the cap tops (air-search.ts): the first cap or land the ray meets, else it escapes (extracted). Into a
+ * cap: refraction into the lens (its site becomes the origin) or a Fresnel reflection off it; onto the land:
+ * into the substrate or a Fresnel reflection back up.
+ */
+export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
+  const kind = airSearch(ray.x, ray.y, ray.z, ray.dx, ray.dy, ray.dz, ray.excludeSelf, st.hexagonal, st.pitchUm,
+    st.lensRadiusUm, st.sagUm, st.thicknessUm, st.curvaturePerUm, st.k1)
+  if (kind === AIR_ESCAPE) return end(ray, T_EXTRACTED)
+  if (kind === AIR_LOST) return end(ray, T_UNRESOLVED)
+  const tau = airHit[0]!
+  ray.x += ray.dx * tau; ray.y += ray.dy * tau; ray.z += ray.dz * tau
+  if (kind === AIR_LAND) {
+    ray.z = st.thicknessUm
+    at(ray, rec)
+    ray.bounces++ // back into the film from air, whatever happens next
+    const c = flatCrossing(ray, false, 1, st.nSubstrate, st.fresnel)
+    if (c !== CROSS_TRANSMIT) { ray.excludeSelf = false; return MEDIUM_AIR }
+    return MEDIUM_SUBSTRATE
+  }
+  const sx = airHit[1]!, sy = airHit[2]!
+  ray.x -= sx; ray.y -= sy; ray.ox += sx; ray.oy += sy
+  at(ray, rec)
+  ray.bounces++
+  capNormalAt(ray, st, v3)
+  // the normal on the lens side (into the far medium) is the inward one
+  const c = curvedCrossing(ray, -v3[0]!, -v3[1]!, -v3[2]!, 1, st.nLens, st.fresnel)
+  if (c !== CROSS_TRANSMIT) { ray.excludeSelf = true; return MEDIUM_AIR } // a convex cap cannot be met twice by a straight ray
+  ray.onCap = true
+  return MEDIUM_LENS
+}
+
+/** Runs one launched ray to its end: more than maxEvents steps end it as unresolved. */
+export function traceRay(ray: Ray, st: Stack, rec?: RayRecorder): void {
+  let medium = ray.medium
+  while (medium !== RAY_ENDED) {
+    if (++ray.events > st.maxEvents) { ray.end = T_UNRESOLVED; break }
+    ray.medium = medium
+    switch (medium) {
+      case MEDIUM_EMITTER: medium = emitterStep(ray, st, rec); break
+      case MEDIUM_SUBSTRATE: medium = substrateStep(ray, st, rec); break
+      case MEDIUM_LENS: medium = lensStep(ray, st, rec); break
+      default: medium = airStep(ray, st, rec); break
+    }
+  }
+}
