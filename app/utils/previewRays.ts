@@ -1,19 +1,19 @@
-// Sample ray paths for the 3-D preview. The production tracer (shared/optics/tracer.ts) keeps no per-ray path (its
-// hot loop allocates nothing), so this is a small path-recording twin built from the core's own pieces: the packed
-// scene (packScene), the cap intersection and normal (capHit, capNormal), the Fresnel/Snell reference functions
-// (interfaces.ts), the launch samplers and the seeded RNG. It follows the same life (emitter → substrate → cap or
-// land → air, reflector recycling) but searches neighbouring caps by brute force over the drawn patch and may draw
-// the substrate thinner than it is (absorption rescaled so α·t is kept): fine for a picture of ~200 rays, not a
-// tally. Frame z up, µm; the substrate's top face at z = t.
-import {
-  capHit, capNormal, cosTransmitted, createRngState, fresnelAveragedWithCosT, nextUniform, packScene, sampleCell,
-  sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, seedRay, HEX_ROW_FACTOR,
-} from '#shared/optics'
+// Sample ray paths for the 3-D preview: the core's readable model (shared/optics/steps.ts, via traceRangeModel)
+// traces the scenario exactly as a run does (same emitter profile, cap shape, Fresnel mode, source; stream 2 of
+// the seed) and a recorder keeps each ray's vertices. Only the drawing is done here: the substrate is drawn
+// thinner than it is (drawThicknessUm; lateral travel through it shrinks in proportion, and the point where a ray
+// reaches the top face is moved by at most half a pitch so it meets the right spot of the cap it enters), and a
+// ray leaving the drawn patch is shifted back by a whole lattice vector (the stack is laterally periodic),
+// starting a new polyline. Frame z up, µm; the substrate's top face drawn at z = drawThicknessUm.
+import { createTally, HEX_ROW_FACTOR, nearestSite, packScene, T_EXTRACTED, traceRangeModel, type Ray, type RayRecorder } from '#shared/optics'
 import type { Scenario } from '#shared/types/scenario'
-import { conicCurvaturePerUm, shapeConicConstant } from '#shared/types/geometry'
 
+/** escaped: left on its first pass; recycled: left after a reflection or a return from air; lost: did not leave. */
 export type RayFate = 'escaped' | 'recycled' | 'lost'
 export interface PreviewRay { fate: RayFate; /** polylines (a lattice wrap starts a new one), points as [x, y, z] µm */ paths: number[][][] }
+
+/** Preview rays use their own stream of the seed (runs use 0 and 1), so they never repeat a run's rays. */
+export const PREVIEW_STREAM = 2
 
 /** Lattice sites of the drawn patch: those within (rings + ½) pitches of the origin in x and y. */
 export function patchSites(lattice: 'hexagonal' | 'square', pitchUm: number, rings: number): Array<[number, number]> {
@@ -30,220 +30,76 @@ export function patchSites(lattice: 'hexagonal' | 'square', pitchUm: number, rin
   return out
 }
 
+interface Traced { end: number; bounces: number; pts: number[][]; dir: [number, number, number] }
+
+/** Traces `rays` rays of the scenario with the core's model and returns every ray's vertices (true geometry). */
+export function tracePreviewPaths(sc: Scenario, rays: number, seed: number): Traced[] {
+  const out: Traced[] = []
+  let pts: number[][] = []
+  const recorder: RayRecorder = {
+    start() { pts = [] },
+    vertex(x, y, z) { pts.push([x, y, z]) },
+    finish(ray: Ray) { out.push({ end: ray.end, bounces: ray.bounces, pts, dir: [ray.dx, ray.dy, ray.dz] }) },
+  }
+  traceRangeModel(packScene(sc), 0, rays, seed, createTally(), PREVIEW_STREAM, recorder)
+  return out
+}
+
 export function tracePreviewRays(sc: Scenario, opts: { rays?: number; seed?: number; rings?: number; drawThicknessUm: number }): PreviewRay[] {
   const lens = sc.lensArray
-  const n = opts.rays ?? 200
   const rings = opts.rings ?? 3
-  const scene = packScene(sc)
-  const nE = sc.emitter.index, nS = sc.substrate.index, nL = lens?.index ?? nS
-  const t = opts.drawThicknessUm
-  const alpha = (sc.substrate.absorptionPerMm / 1000) * (sc.substrate.thicknessUm / t)
-  const rb = sc.reflector.reflectance, fd = sc.reflector.diffuseFraction
+  const t = sc.substrate.thicknessUm, tDraw = opts.drawThicknessUm, k = tDraw / t
   const hex = !lens || lens.lattice === 'hexagonal'
   const pitch = lens?.pitchUm ?? 10
-  const a = lens ? lens.diameterUm / 2 : 0, h = lens?.sagUm ?? 0
-  // A measured profile is drawn as the spherical cap of the same diameter and sag (the preview only; runs trace it).
-  const k = lens ? shapeConicConstant(lens.shape === 'measured' ? 'spherical' : lens.shape, lens.conicConstant) : 0
-  const cv = lens ? conicCurvaturePerUm(lens.diameterUm, h, k) : 0
-  const k1 = 1 + k, zv = t + h
-  const sites = lens ? patchSites(lens.lattice, pitch, rings) : []
+  const zTop = t + (lens?.sagUm ?? 0)
   const half = (rings + 0.5) * pitch * (hex ? HEX_ROW_FACTOR : 1) // keep rays within the patch
-  const rng = createRngState()
-  const v = new Float64Array(3), nrm = new Float64Array(3)
-  const fresnel = sc.trace.fresnel !== 'none'
-  const out: PreviewRay[] = []
-  void scene
+  const site = new Float64Array(4)
+  const zDraw = (z: number) => (z <= t ? z * k : z - t + tDraw)
+  const inside = (x: number, y: number) => Math.abs(x) <= half && Math.abs(y) <= half
 
-  for (let r = 0; r < n; r++) {
-    seedRay(rng, opts.seed ?? 7, 2, r)
-    const u1 = nextUniform(rng), u2 = nextUniform(rng)
-    const src = sc.emitter.source
-    if (src.shape === 'disc') sampleDisc(src.radiusUm, u1, u2, v)
-    else if (src.shape === 'rectangle') sampleRectangle(src.widthUm, src.heightUm, u1, u2, v)
-    else { sampleCell(hex, pitch, u1, u2, v); v[0] = v[0]! - pitch / 2; v[1] = v[1]! - pitch / 2 }
-    let x = v[0]!, y = v[1]!, z = 0
-    if (sc.emitter.angularProfile === 'lambertian') sampleLambertian(nextUniform(rng), nextUniform(rng), v)
-    else sampleIsotropic(nextUniform(rng), nextUniform(rng), v)
-    let dx = v[0]!, dy = v[1]!, dz = v[2]!
-    let med = 0 // 0 emitter, 1 substrate, 2 lens (site sx, sy), 3 air
+  return tracePreviewPaths(sc, opts.rays ?? 200, opts.seed ?? 7).map((r) => {
+    const fate: RayFate = r.end !== T_EXTRACTED ? 'lost' : r.bounces > 0 ? 'recycled' : 'escaped'
+    const pts = r.pts.slice()
+    if (fate !== 'lost') {
+      // carry the escaping ray on until it is a pitch above the cap tops
+      const last = pts.at(-1)!, [dx, dy, dz] = r.dir
+      const L = Math.max(3 * pitch, dz > 0 ? (zTop + pitch - last[2]!) / dz : 0)
+      pts.push([last[0]! + dx * L, last[1]! + dy * L, last[2]! + dz * L])
+    }
+    // drawn = true − (sx, sy); the shift grows while the substrate is drawn thin and is put back on a lattice
+    // vector where the ray reaches the top face
     let sx = 0, sy = 0
-    let recycled = false
-    let fate: RayFate | null = null
-    let lastCap = -1
-    const paths: number[][][] = [[[x, y, z]]]
-    const pt = () => paths[paths.length - 1]!.push([x, y, z])
-    // the patch is finite but the array is not: a point outside the drawn patch is shifted back by whole lattice
-    // vectors (the stack is laterally periodic) and the drawing starts a new polyline there
-    const wrap = () => {
-      if (!lens || (Math.abs(x) <= half && Math.abs(y) <= half)) return false
-      const j = Math.round(y / (pitch * (hex ? HEX_ROW_FACTOR : 1)))
-      const i = Math.round((x - (hex ? 0.5 * j * pitch : 0)) / pitch)
-      x -= (i + (hex ? 0.5 * j : 0)) * pitch
-      y -= j * pitch * (hex ? HEX_ROW_FACTOR : 1)
-      paths.push([[x, y, z]])
-      return true
+    let prev = pts[0]!
+    let px = prev[0]!, py = prev[1]!
+    if (lens && !inside(px, py)) { nearestSite(hex, pitch, px, py, site); sx = site[0]!; sy = site[1]!; px -= sx; py -= sy }
+    const paths: number[][][] = [[[px, py, zDraw(prev[2]!)]]]
+    for (let i = 1; i < pts.length; i++) {
+      const q = pts[i]!
+      const inSubstrate = prev[2]! <= t && q[2]! <= t
+      if (inSubstrate) {
+        sx += (1 - k) * (q[0]! - prev[0]!); sy += (1 - k) * (q[1]! - prev[1]!)
+        if (lens && q[2]! === t) { nearestSite(hex, pitch, sx, sy, site); sx = site[0]!; sy = site[1]! }
+      }
+      let qx = q[0]! - sx, qy = q[1]! - sy
+      const qz = zDraw(q[2]!)
+      const last = i === pts.length - 1 && fate !== 'lost'
+      if (lens && !last && !inside(qx, qy)) {
+        // draw up to the patch edge, then carry on from the end point moved back into the patch
+        const ax = paths.at(-1)!.at(-1)!
+        const ex = qx - ax[0]!, ey = qy - ax[1]!, ez = qz - ax[2]!
+        let te = 1
+        if (qx > half) te = Math.min(te, (half - ax[0]!) / ex)
+        if (qx < -half) te = Math.min(te, (-half - ax[0]!) / ex)
+        if (qy > half) te = Math.min(te, (half - ax[1]!) / ey)
+        if (qy < -half) te = Math.min(te, (-half - ax[1]!) / ey)
+        te = Math.max(0, te)
+        paths.at(-1)!.push([ax[0]! + ex * te, ax[1]! + ey * te, ax[2]! + ez * te])
+        nearestSite(hex, pitch, qx, qy, site)
+        sx += site[0]!; sy += site[1]!; qx -= site[0]!; qy -= site[1]!
+        paths.push([[qx, qy, qz]])
+      } else paths.at(-1)!.push([qx, qy, qz])
+      prev = q
     }
-    const edgeTau = () => Math.min(dx > 0 ? (half - x) / dx : dx < 0 ? (-half - x) / dx : Infinity, dy > 0 ? (half - y) / dy : dy < 0 ? (-half - y) / dy : Infinity)
-    const refl = (cosI: number, n1: number, n2: number) => {
-      const cosT = cosTransmitted(cosI, n1, n2)
-      if (cosT < 0) return { tir: true, cosT: 0 }
-      return { tir: fresnel && nextUniform(rng) < fresnelAveragedWithCosT(cosI, cosT, n1, n2), cosT }
-    }
-    for (let ev = 0; ev < 80 && fate === null; ev++) {
-      if (med === 0) {
-        if (dz < 0) {
-          if (nextUniform(rng) >= rb) { fate = 'lost'; break }
-          recycled = true
-          if (fd > 0 && nextUniform(rng) < fd) { sampleLambertian(nextUniform(rng), nextUniform(rng), v); dx = v[0]!; dy = v[1]!; dz = v[2]! } else dz = -dz
-          continue
-        }
-        const f = refl(dz, nE, nS)
-        if (f.tir && cosTransmitted(dz, nE, nS) < 0) { fate = 'lost'; break } // guided in the organic layers
-        if (f.tir) { dz = -dz; continue }
-        const eta = nE / nS
-        dx *= eta; dy *= eta; dz = f.cosT
-        med = 1
-        continue
-      }
-      if (med === 1) {
-        wrap()
-        const path = dz > 0 ? (t - z) / dz : -z / dz
-        if (alpha > 0 && -Math.log(nextUniform(rng)) < alpha * path) { x += dx * path * 0.5; y += dy * path * 0.5; z += dz * path * 0.5; pt(); fate = 'lost'; break }
-        const te = lens ? edgeTau() : Infinity
-        if (te >= 0 && te < path) {
-          // draw up to the patch edge, then carry on from the wrapped end point
-          paths[paths.length - 1]!.push([x + dx * te, y + dy * te, z + dz * te])
-          x += dx * path; y += dy * path; z = dz > 0 ? t : 0
-          if (!wrap()) pt()
-        } else {
-          x += dx * path; y += dy * path; z = dz > 0 ? t : 0
-          pt()
-          wrap()
-        }
-        if (dz < 0) {
-          const f = refl(-dz, nS, nE)
-          if (f.tir) { dz = -dz; recycled = true; continue }
-          const eta = nS / nE
-          dx *= eta; dy *= eta; dz = -f.cosT
-          med = 0
-          continue
-        }
-        let site = -1, best = Infinity
-        for (let s = 0; s < sites.length; s++) {
-          const ex = x - sites[s]![0], ey = y - sites[s]![1]
-          const d2 = ex * ex + ey * ey
-          if (d2 < a * a && d2 < best) { best = d2; site = s }
-        }
-        if (site >= 0) {
-          sx = sites[site]![0]; sy = sites[site]![1]
-          if (nL !== nS) {
-            const f = refl(dz, nS, nL)
-            if (f.tir) { dz = -dz; continue }
-            const eta = nS / nL
-            dx *= eta; dy *= eta; dz = f.cosT
-          }
-          med = 2
-          lastCap = -1
-          continue
-        }
-        const f = refl(dz, nS, 1)
-        if (f.tir) { dz = -dz; recycled = true; continue }
-        dx *= nS; dy *= nS; dz = f.cosT
-        med = 3
-        lastCap = -1
-        continue
-      }
-      if (med === 2) {
-        const tS = capHit(x - sx, y - sy, z, dx, dy, dz, zv, cv, k1, h, lastCap === -2)
-        const tB = dz < 0 ? (t - z) / dz : Infinity
-        if (tS > 0 && tS < tB) {
-          x += dx * tS; y += dy * tS; z += dz * tS
-          pt()
-          capNormal(x - sx, y - sy, z, zv, cv, k1, nrm)
-          const cosI = dx * nrm[0]! + dy * nrm[1]! + dz * nrm[2]!
-          const f = refl(cosI, nL, 1)
-          if (f.tir) {
-            dx -= 2 * cosI * nrm[0]!; dy -= 2 * cosI * nrm[1]!; dz -= 2 * cosI * nrm[2]!
-            lastCap = -2 // on the surface
-            recycled = true
-            continue
-          }
-          const g = f.cosT - nL * cosI
-          dx = nL * dx + g * nrm[0]!; dy = nL * dy + g * nrm[1]!; dz = nL * dz + g * nrm[2]!
-          med = 3
-          lastCap = sites.findIndex((s) => s[0] === sx && s[1] === sy)
-          continue
-        }
-        if (tB === Infinity) { fate = 'lost'; break }
-        x += dx * tB; y += dy * tB; z = t
-        pt()
-        if (nL !== nS) {
-          const f = refl(-dz, nL, nS)
-          if (f.tir) { dz = -dz; continue }
-          const eta = nL / nS
-          dx *= eta; dy *= eta; dz = -f.cosT
-        }
-        med = 1
-        continue
-      }
-      // air below the cap tops: the nearest cap of the patch, else the land, else away
-      let bestT = Infinity, bestS = -1
-      for (let s = 0; s < sites.length; s++) {
-        if (s === lastCap) continue
-        const tau = capHit(x - sites[s]![0], y - sites[s]![1], z, dx, dy, dz, zv, cv, k1, h, false)
-        if (tau > 0 && tau < bestT) { bestT = tau; bestS = s }
-      }
-      const tLand = dz < 0 ? (t - z) / dz : Infinity
-      {
-        if (wrap()) { lastCap = -1; continue }
-        const tTop = dz > 0 && z < zv ? (zv - z) / dz : 0
-        const tNext = Math.min(bestT, tLand, bestS < 0 && tLand === Infinity ? tTop : Infinity)
-        const tEdge = edgeTau()
-        if (lens && tEdge < tNext && tEdge >= 0) {
-          x += dx * tEdge; y += dy * tEdge; z += dz * tEdge
-          pt()
-          x += dx * 1e-6; y += dy * 1e-6; z += dz * 1e-6 // just past the edge, so the wrap applies
-          wrap()
-          lastCap = -1
-          continue
-        }
-      }
-      if (bestS < 0 && tLand === Infinity) {
-        const L = 3 * pitch
-        x += dx * L; y += dy * L; z += dz * L
-        pt()
-        fate = recycled ? 'recycled' : 'escaped'
-        break
-      }
-      if (bestT < tLand) {
-        x += dx * bestT; y += dy * bestT; z += dz * bestT
-        pt()
-        sx = sites[bestS]![0]; sy = sites[bestS]![1]
-        capNormal(x - sx, y - sy, z, zv, cv, k1, nrm)
-        const cosI = -(dx * nrm[0]! + dy * nrm[1]! + dz * nrm[2]!)
-        const f = refl(cosI, 1, nL)
-        if (f.tir) {
-          dx += 2 * cosI * nrm[0]!; dy += 2 * cosI * nrm[1]!; dz += 2 * cosI * nrm[2]!
-          lastCap = bestS
-          continue
-        }
-        const eta = 1 / nL
-        const g = eta * cosI - f.cosT
-        dx = eta * dx + g * nrm[0]!; dy = eta * dy + g * nrm[1]!; dz = eta * dz + g * nrm[2]!
-        med = 2
-        lastCap = -2
-        recycled = true
-        continue
-      }
-      x += dx * tLand; y += dy * tLand; z = t
-      pt()
-      const f = refl(-dz, 1, nS)
-      if (f.tir) { dz = -dz; lastCap = -1; continue }
-      dx /= nS; dy /= nS; dz = -f.cosT
-      med = 1
-      recycled = true
-    }
-    out.push({ fate: fate ?? 'lost', paths })
-  }
-  return out
+    return { fate, paths }
+  })
 }

@@ -1,4 +1,5 @@
-// The 3-D preview's path-recording tracer (app/utils/previewRays.ts) against closed forms from ../shared/CHECKS.md.
+// The 3-D preview (app/utils/previewRays.ts): the core's readable model plus drawing transforms, against closed forms
+// and against the fused core on every emitter profile and cap shape.
 import { describe, expect, it } from 'vitest'
 import { patchSites, tracePreviewRays } from '../../app/utils/previewRays'
 import { scenarioSchema } from '../../shared/types/scenario'
@@ -6,7 +7,7 @@ import { scenarioSchema } from '../../shared/types/scenario'
 const base = { emitter: { index: 1.5 }, reflector: { reflectance: 1 }, substrate: { index: 1.5, thicknessUm: 100 }, trace: { fresnel: 'none' } }
 
 describe('preview rays', () => {
-  it('seed 7, 4000 rays: planar n = 1.5 with an ideal mirror and no Fresnel escapes 1 − cos θc = 0.2546 (CHECKS.md, escape cone) within 4σ', () => {
+  it('seed 7, 4000 rays: planar n = 1.5 with an ideal mirror and no Fresnel escapes 1 − cos θc = 0.2546 (escape cone of an isotropic emitter over an ideal mirror, Hecht, Optics, §4.7) within 4σ', () => {
     const sc = scenarioSchema.parse({ ...base, lensArray: null })
     const n = 4000
     const rays = tracePreviewRays(sc, { rays: n, seed: 7, drawThicknessUm: 10 })
