@@ -43,7 +43,7 @@ describe('designer', () => {
     expect(Number(await value('#lens-radius'))).toBe(5) // hemisphere: Rc = r
   })
 
-  it('changes the sag and sees the derived radius follow (D 10 µm, h 2.5 µm → Rc 6.25 µm, CHECKS.md)', async () => {
+  it('changes the sag and sees the derived radius follow (D 10 µm, h 2.5 µm → Rc 6.25 µm, standard spherical-cap geometry)', async () => {
     await page.locator('#lens-sag').fill('2.5')
     await expect.poll(() => value('#lens-radius')).toBe('6.25')
     await expect.poll(() => page.getByTestId('cross-section-rc').textContent()).toContain('6.25 µm')
@@ -98,7 +98,7 @@ describe('designer', () => {
     const gain = await page.getByTestId('figure-enhancement').textContent()
     const m = /(\d+\.\d+) ± (\d+\.\d+) ×/.exec(gain ?? '')
     expect(m).not.toBeNull()
-    // shallow caps on 1.5 glass: a gain above 1 (CHECKS.md, published bands 1.5–2.2× are for hemispheres)
+    // shallow caps on 1.5 glass: a gain above 1 (published bands of 1.5–2.2× are for hemispheres: Möller & Forrest 2002; Peng et al. 2005)
     expect(Number(m![1])).toBeGreaterThan(1)
     await page.locator('[data-testid=chart-polar] canvas').first().waitFor()
     await expect.poll(() => page.getByTestId('chart-polar').textContent()).toContain('Flat device: the same stack without lenses')

@@ -3,7 +3,7 @@ import { expect } from 'vitest'
 import { scenarioSchema, type Scenario, type ScenarioInput } from '../../shared/types/scenario'
 import { createTally, packScene, traceRange, type Tally, T_RAYS } from '../../shared/optics'
 
-/** 5σ two-sided: false-alarm 5.7e-7 per check (CHECKS.md, Statistics). */
+/** 5σ two-sided: false-alarm 5.7e-7 per check (normal tail, Abramowitz & Stegun, Handbook of Mathematical Functions, §26.2; from memory). */
 export const K_SIGMA = 5
 
 export function planarStack(over: Partial<{ nE: number; nS: number; rb: number; fd: number; fresnel: 'averaged' | 'none'; profile: ScenarioInput['emitter']['angularProfile']; absorptionPerMm: number; thicknessUm: number }> = {}): Scenario {

@@ -1,5 +1,6 @@
 // Lens arrays: isolated dome closed form, the (air + substrate) ceiling, symmetry of the θ–φ map, scale
-// invariance, conservation, and the published enhancement band (shared/CHECKS.md).
+// invariance, conservation, and the published enhancement band (Möller & Forrest, J. Appl. Phys. 91, 3324 (2002); Eom et al., Org. Electron. 12, 472 (2011);
+// Peng et al., J. Display Technol. 1, 278 (2005)).
 import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import { scenarioSchema, type ScenarioInput } from '../../shared/types/scenario'
@@ -19,7 +20,7 @@ const example: ScenarioInput = {
 const withLens = (over: Record<string, unknown>, base: ScenarioInput = example) =>
   scenarioSchema.parse({ ...base, lensArray: { ...(base.lensArray as object), ...over } })
 
-describe('isolated hemispherical dome, emitter at its centre (CHECKS.md: η = ½(1+Rb)·T/(1−R·Rb), T 0.96, R 0.04)', () => {
+describe('isolated hemispherical dome, emitter at its centre (normal-incidence Fresnel, Hecht, Optics, ch. 4: η = ½(1+Rb)·T/(1−R·Rb), T 0.96, R 0.04)', () => {
   it.each([[0, 501], [0.8, 502], [1, 503]] as const)('Rb %s — seed %s', (rb, seed) => {
     // D 1000 µm dome, 0.01 µm above a point-like disc source (r 0.01 µm), pitch 10⁵ µm: neighbours subtend < 1e-4
     // rad of elevation, the centre offset changes the incidence by < 1e-5 rad; all indices 1.5 (no inner faces).
@@ -37,7 +38,7 @@ describe('isolated hemispherical dome, emitter at its centre (CHECKS.md: η = ½
   })
 })
 
-describe('mode split and ceiling with a lens film (CHECKS.md: air + substrate = 0.5294, 2.767× planar air)', () => {
+describe('mode split and ceiling with a lens film (ray optics, critical angles, Hecht, Optics, ch. 4: air + substrate = 0.5294, 2.767× planar air)', () => {
   it('Rb = 1, no loss, no Fresnel: waveguided stays 0.4706 and everything else leaves: extraction → 0.5294 — seed 601', () => {
     const sc = withLens({}, { ...example, reflector: { reflectance: 1 }, trace: { fresnel: 'none' } })
     const t = traceScene(sc, 200_000, 601)
@@ -58,7 +59,7 @@ describe('mode split and ceiling with a lens film (CHECKS.md: air + substrate = 
   })
 })
 
-describe('published microlens enhancement (soft band, CHECKS.md)', () => {
+describe('published microlens enhancement (soft band)', () => {
   it('close-packed hemispheres on glass, the issue example: 1.5–2.2× (Möller & Forrest 2002 ~1.5×, from memory; Eom et al. 2011 up to 1.7×; Peng et al. 2005 1.85×) — seed 701', () => {
     const r = traceScenario(scenarioSchema.parse(example), { rays: 200_000, seed: 701 })
     // soft: the band's edges widened by 5σ
@@ -70,7 +71,7 @@ describe('published microlens enhancement (soft band, CHECKS.md)', () => {
   })
 })
 
-describe('finite pixel (CHECKS.md: a lens array over a pixel of about the lens size can lower on-axis luminance, Lin et al., Opt. Express 16, 11044 (2008))', () => {
+describe('finite pixel (a lens array over a pixel of about the lens size can lower on-axis luminance, Lin et al., Opt. Express 16, 11044 (2008))', () => {
   it('20 µm disc pixel under 10 µm close-packed hemispheres on 20 µm glass: pixel on-axis luminance below the planar device by > 5σ, while total extraction rises — seed 703', () => {
     const sc = scenarioSchema.parse({
       emitter: { index: 1.7, source: { shape: 'disc', radiusUm: 10 } }, reflector: { reflectance: 0.8 },

@@ -1,7 +1,7 @@
 // Lens shape "measured": a spherical cap sampled into a profile table and traced through the monotone interpolant
 // must give the analytic cap's extraction within K_SIGMA·σ (independent seeds, σ of the difference of two
 // binomial estimates); a sampled cap of another sag is a control the same check must tell apart.
-// Cap geometry: h(ρ) = √(Rc² − ρ²) − (Rc − h), Rc = (a² + h²)/(2h) (standard spherical-cap geometry, CHECKS.md).
+// Cap geometry: h(ρ) = √(Rc² − ρ²) − (Rc − h), Rc = (a² + h²)/(2h) (standard spherical-cap geometry).
 import { describe, expect, it } from 'vitest'
 import { scenarioSchema, type ScenarioInput } from '../../shared/types/scenario'
 import { traceScenario } from '../../shared/optics'

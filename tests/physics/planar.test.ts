@@ -1,4 +1,5 @@
-// Planar stacks against closed forms and a 1-D quadrature (shared/CHECKS.md, "Escape cone and planar stacks").
+// Planar stacks against closed forms and a 1-D quadrature (escape cone 1 − cos θc: Greenham, Friend & Bradley, Adv. Mater. 6, 491 (1994), the formula from memory;
+// Fresnel coefficients: Hecht, Optics, ch. 4).
 import { describe, expect, it } from 'vitest'
 import { fresnelAveraged } from '../../shared/optics/interfaces'
 import { THETA_BINS, T_EXTRACTED, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from '../../shared/optics'
@@ -12,7 +13,7 @@ const N = 300_000
  * Per emission cosine μ in the emitter (upward, after the down-going half met the mirror: weight ½(1+Rb) for an
  * isotropic source): P = T1/(1 − R1·Rb) · A·T2/(1 − R2·A²·Rb,eff), the geometric series of multiple reflections,
  * with A = exp(−α t/μs) one substrate pass and Rb,eff = R1 + T1²·Rb/(1 − R1·Rb) the reflectance seen from the
- * substrate (CHECKS.md's integral, extended by absorption; derivation in the test's own terms).
+ * substrate (Fresnel: Hecht, Optics, ch. 4; the series and its extension by absorption derived here).
  */
 function planarQuadrature(nE: number, nS: number, rb: number, alphaPerUm: number, tUm: number, fresnel: boolean, profile: 'isotropic' | 'lambertian'): number {
   const muMin = Math.sqrt(1 - 1 / (nE * nE)) // escape cone into air, in the emitter
@@ -33,21 +34,21 @@ function planarQuadrature(nE: number, nS: number, rb: number, alphaPerUm: number
 }
 
 describe('planar closed forms (no Fresnel)', () => {
-  it('isotropic, ideal mirror: 1 − cos θc = 0.2546 (n 1.5) and 0.1913 (n 1.7) (CHECKS.md, ray optics) — seed 101', () => {
+  it('isotropic, ideal mirror: 1 − cos θc = 0.2546 (n 1.5) and 0.1913 (n 1.7) (Greenham, Friend & Bradley, Adv. Mater. 6, 491 (1994); from memory) — seed 101', () => {
     for (const [n, want] of [[1.5, 0.2546], [1.7, 0.1913]] as const) {
       const t = traceScene(planarStack({ nE: n, nS: n, fresnel: 'none' }), N, 101)
       const { p, sigma } = fraction(t, T_EXTRACTED)
       expectWithinSigma(`escape cone n ${n}`, p, want, Math.hypot(sigma, 5e-5)) // 5e-5: rounding of the 4-figure value
     }
   })
-  it('Lambertian: sin²θc = 1/n² = 0.4444 (n 1.5), 0.3460 (n 1.7) (CHECKS.md) — seed 102', () => {
+  it('Lambertian: sin²θc = 1/n² = 0.4444 (n 1.5), 0.3460 (n 1.7) (ray optics: critical angle asin(1/n), Hecht, Optics, ch. 4) — seed 102', () => {
     for (const [n, want] of [[1.5, 0.4444], [1.7, 0.346]] as const) {
       const t = traceScene(planarStack({ nE: n, nS: n, fresnel: 'none', profile: 'lambertian' }), N, 102)
       const { p, sigma } = fraction(t, T_EXTRACTED)
       expectWithinSigma(`Lambertian n ${n}`, p, want, Math.hypot(sigma, 5e-5))
     }
   })
-  it('mode split 1.7 | 1.5 | air, Rb = 1: air 0.1913, substrate (trapped) 0.3381, waveguided 0.4706 (CHECKS.md) — seed 103', () => {
+  it('mode split 1.7 | 1.5 | air, Rb = 1: air 0.1913, substrate (trapped) 0.3381, waveguided 0.4706 (ray optics: critical angles, Hecht, Optics, ch. 4) — seed 103', () => {
     const t = traceScene(planarStack({ fresnel: 'none' }), N, 103)
     expectWithinSigma('air', fraction(t, T_EXTRACTED).p, 0.1913, Math.hypot(fraction(t, T_EXTRACTED).sigma, 5e-5))
     expectWithinSigma('substrate modes', fraction(t, T_TRAPPED).p, 0.3381, Math.hypot(fraction(t, T_TRAPPED).sigma, 5e-5))
@@ -56,7 +57,7 @@ describe('planar closed forms (no Fresnel)', () => {
   })
 })
 
-describe('planar stack with Fresnel and a specular mirror vs 1-D quadrature (CHECKS.md)', () => {
+describe('planar stack with Fresnel and a specular mirror vs 1-D quadrature (Fresnel: Hecht, Optics, ch. 4; Born & Wolf, §1.5)', () => {
   it('the quadrature reproduces the listed values: Rb 1.0 → 0.1913, Rb 0.8 → 0.1678 (isotropic, 1.7 | 1.5, averaged)', () => {
     expect(planarQuadrature(1.7, 1.5, 1, 0, 100, true, 'isotropic')).toBeCloseTo(0.1913, 4)
     expect(planarQuadrature(1.7, 1.5, 0.8, 0, 100, true, 'isotropic')).toBeCloseTo(0.1678, 4)
@@ -78,7 +79,7 @@ describe('planar stack with Fresnel and a specular mirror vs 1-D quadrature (CHE
   })
 })
 
-describe('air intensity from the radiance theorem (L/n² conserved; CHECKS.md)', () => {
+describe('air intensity from the radiance theorem (L/n² conserved across an interface; standard radiometry, from memory)', () => {
   it('shape formula cosθ/√(1 − sin²θ/n²): 0.9186 at 30°, 0.8018 at 45°, 0.6124 at 60° for n 1.5', () => {
     const f = (deg: number) => Math.cos((deg * Math.PI) / 180) / Math.sqrt(1 - Math.sin((deg * Math.PI) / 180) ** 2 / 2.25)
     expect(f(30)).toBeCloseTo(0.9186, 4)

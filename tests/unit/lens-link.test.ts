@@ -1,5 +1,5 @@
 // Linked lens inputs of the design editor (app/utils/lensLink.ts): any two of D / h / Rc, fill factor ↔ D.
-// Check values from ../shared/CHECKS.md, "Lens geometry (standard geometry)": spherical cap Rc = (r² + h²)/(2h),
+// Check values from standard geometry: spherical cap Rc = (r² + h²)/(2h),
 // D 10 µm h 2.5 µm → Rc 6.250 µm, contact angle 53.13°; fill factor hexagonal π/(2√3)·(D/p)² = 0.9069·(D/p)²,
 // square π/4·(D/p)² (Conway & Sloane, Sphere Packings, Lattices and Groups, ch. 1).
 import { describe, expect, it } from 'vitest'
@@ -8,7 +8,7 @@ import { editLens, linkFromLens, setLattice } from '../../app/utils/lensLink'
 import { contactAngleDeg } from '../../shared/types/geometry'
 
 describe('linked lens inputs', () => {
-  it('D and h give Rc: D 10 µm, h 2.5 µm → Rc 6.250 µm, 53.13° (CHECKS.md, standard geometry)', () => {
+  it('D and h give Rc: D 10 µm, h 2.5 µm → Rc 6.250 µm, 53.13° (standard geometry)', () => {
     const s = linkFromLens('hexagonal', 12, 10, 2.5)
     expect(s.radiusUm).toBeCloseTo(6.25, 10)
     expect(contactAngleDeg(s.diameterUm, s.sagUm)).toBeCloseTo(53.13, 2)

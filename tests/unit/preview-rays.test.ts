@@ -8,7 +8,7 @@ import { createTally, packScene, traceRange, T_EXTRACTED } from '../../shared/op
 const base = { emitter: { index: 1.5 }, reflector: { reflectance: 1 }, substrate: { index: 1.5, thicknessUm: 100 }, trace: { fresnel: 'none' } }
 
 describe('preview rays', () => {
-  it('seed 7, 4000 rays: planar n = 1.5 with an ideal mirror and no Fresnel escapes 1 − cos θc = 0.2546 (escape cone of an isotropic emitter over an ideal mirror, Hecht, Optics, §4.7) within 4σ', () => {
+  it('seed 7, 4000 rays: planar n = 1.5 with an ideal mirror and no Fresnel escapes 1 − cos θc = 0.2546 (escape cone over an ideal mirror; Greenham, Friend & Bradley, Adv. Mater. 6, 491 (1994), from memory) within 4σ', () => {
     const sc = scenarioSchema.parse({ ...base, lensArray: null })
     const n = 4000
     const rays = tracePreviewRays(sc, { rays: n, seed: 7, drawThicknessUm: 10 })

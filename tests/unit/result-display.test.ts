@@ -14,7 +14,7 @@ describe('figures with σ', () => {
     expect(num(6.25, 'µm')).toBe('6.25 µm')
   })
 
-  it('binomial σ: 4.0e-4 at p = 0.2, N = 10⁶ (CHECKS.md, statistics)', () => {
+  it('binomial σ: 4.0e-4 at p = 0.2, N = 10⁶ (binomial variance p(1−p)/N, standard statistics)', () => {
     expect(binomialStdErr(0.2, 1e6)).toBeCloseTo(4.0e-4, 8)
     expect(binomialStdErr(0.2, 0)).toBe(0)
   })

@@ -1,4 +1,4 @@
-// Derived lens geometry and the core's lattice/cap intersection (standard geometry; CHECKS.md "Lens geometry").
+// Derived lens geometry and the core's lattice/cap intersection (standard geometry).
 import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import {
@@ -8,7 +8,7 @@ import {
 import { capHit, capNormal, nearestSite } from '../../../shared/optics/geometry'
 import { wrapToSite } from '../../../shared/optics/tracer'
 
-describe('spherical cap (standard geometry, CHECKS.md)', () => {
+describe('spherical cap (standard geometry)', () => {
   it('D 10 µm, h 2.5 µm → Rc 6.250 µm, contact angle 53.13°; hemisphere h = r, 90°', () => {
     expect(radiusOfCurvatureUm(10, 2.5)).toBeCloseTo(6.25, 10)
     expect(contactAngleDeg(10, 2.5)).toBeCloseTo(53.13, 2)

@@ -1,4 +1,4 @@
-// Interface formulas against handbook values (shared/CHECKS.md: Hecht, Optics, ch. 4; Born & Wolf, §1.5).
+// Interface formulas against handbook values (Hecht, Optics, ch. 4; Born & Wolf, Principles of Optics, §1.5).
 import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import {
@@ -6,7 +6,7 @@ import {
 } from '../../../shared/optics/interfaces'
 
 const DEG = Math.PI / 180
-// CHECKS.md values are given to 4 significant figures: half a unit in the last place is the tolerance.
+// The reference values are given to 4 significant figures: half a unit in the last place is the tolerance.
 const close4 = (got: number, want: number) => expect(Math.abs(got - want)).toBeLessThanOrEqual(0.5 * 10 ** (Math.floor(Math.log10(Math.abs(want))) - 3) + 1e-15)
 
 describe('Fresnel at normal incidence (Hecht ch. 4)', () => {
@@ -51,7 +51,7 @@ describe('critical and Brewster angles (Hecht ch. 4)', () => {
 })
 
 describe('derived closed forms', () => {
-  it('incoherent thick slab at normal incidence T = (1−R)/(1+R) = 2n/(n²+1) = 0.9231 for n = 1.5 (CHECKS.md)', () => {
+  it('incoherent thick slab at normal incidence T = (1−R)/(1+R) = 2n/(n²+1) = 0.9231 for n = 1.5 (Hecht, Optics, ch. 4)', () => {
     const R = fresnelAveraged(1, 1, 1.5)
     close4((1 - R) / (1 + R), 0.9231)
   })

@@ -1,5 +1,5 @@
 // Random streams: determinism per (seed, stream, ray), independence of neighbouring rays, uniformity.
-// Statistical checks fix their seeds (named in the test) and use 5σ bands (false-alarm 5.7e-7, CHECKS.md).
+// Statistical checks fix their seeds (named in the test) and use 5σ bands (false-alarm 5.7e-7, normal tail, Abramowitz & Stegun §26.2; from memory).
 import { describe, expect, it } from 'vitest'
 import { createRngState, fillUniforms, mix32, nextUint32, nextUniform, seedRay } from '../../../shared/optics/rng'
 
