@@ -1,8 +1,10 @@
 // Crossing an interface between homogeneous media: Snell's law, total internal reflection and the Fresnel
-// decision (Hecht, Optics, 5th ed., §4.4–4.6; Born & Wolf, Principles of Optics, §1.5.2). The only home of this
-// arithmetic: the readable model (steps.ts) calls these, and the fused loop (tracer.ts) calls fresnelReflects and
-// repeats the vector algebra below operation for operation (tests/unit/optics/model-equality.test.ts proves it).
-// Fresnel mode "averaged" reflects with probability (Rs + Rp)/2, one uniform per decision.
+// power coefficients (Hecht, Optics, ch. 4; Born & Wolf, Principles of Optics, §1.5). The only home of this
+// arithmetic: the readable model (steps.ts) calls the crossings, the fused loop (tracer.ts) calls fresnelReflects
+// and repeats the crossings' vector algebra operation for operation (tests/unit/optics/model-equality.test.ts
+// proves it), and the closed forms at the end are the tested reference the UI and tests use (interfaces.ts
+// re-exports them). Fresnel mode "averaged" reflects with probability (Rs + Rp)/2, one uniform per decision.
+// Angles in radians; cosI is the cosine between the ray and the normal on the incidence side (0 < cosI ≤ 1).
 import { draw, type Ray } from './ray'
 
 /** Outcomes of a crossing. */
@@ -57,4 +59,60 @@ export function curvedCrossing(ray: Ray, nx: number, ny: number, nz: number, n1:
   const g = cosT - eta * cosI
   ray.dx = eta * ray.dx + g * nx; ray.dy = eta * ray.dy + g * ny; ray.dz = eta * ray.dz + g * nz
   return CROSS_TRANSMIT
+}
+
+// Closed forms (reference values for tests and the UI)
+
+/** cos of the refraction angle, or −1 for total internal reflection. */
+export function cosTransmitted(cosI: number, n1: number, n2: number): number {
+  const eta = n1 / n2
+  const sin2T = eta * eta * (1 - cosI * cosI)
+  return sin2T >= 1 ? -1 : Math.sqrt(1 - sin2T)
+}
+
+/** s-polarised power reflectance (1 under TIR). */
+export function fresnelRs(cosI: number, n1: number, n2: number): number {
+  const cosT = cosTransmitted(cosI, n1, n2)
+  if (cosT < 0) return 1
+  const r = (n1 * cosI - n2 * cosT) / (n1 * cosI + n2 * cosT)
+  return r * r
+}
+
+/** p-polarised power reflectance (1 under TIR). */
+export function fresnelRp(cosI: number, n1: number, n2: number): number {
+  const cosT = cosTransmitted(cosI, n1, n2)
+  if (cosT < 0) return 1
+  const r = (n2 * cosI - n1 * cosT) / (n2 * cosI + n1 * cosT)
+  return r * r
+}
+
+/** Polarisation-averaged power reflectance (Rs + Rp)/2 — the reference ("averaged") mode. */
+export function fresnelAveraged(cosI: number, n1: number, n2: number): number {
+  const cosT = cosTransmitted(cosI, n1, n2)
+  if (cosT < 0) return 1
+  return fresnelAveragedWithCosT(cosI, cosT, n1, n2)
+}
+
+/** As fresnelAveraged when cosT is already known (cosT ≥ 0). */
+export function fresnelAveragedWithCosT(cosI: number, cosT: number, n1: number, n2: number): number {
+  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
+  const rs = (a - b) / (a + b)
+  const rp = (c - d) / (c + d)
+  return 0.5 * (rs * rs + rp * rp)
+}
+
+/** Critical angle asin(n2/n1) in radians, NaN when n2 ≥ n1 (no TIR). */
+export function criticalAngleRad(n1: number, n2: number): number {
+  return n2 < n1 ? Math.asin(n2 / n1) : NaN
+}
+
+/** Brewster angle atan(n2/n1) in radians (Rp = 0 there). */
+export function brewsterAngleRad(n1: number, n2: number): number {
+  return Math.atan(n2 / n1)
+}
+
+/** Fraction of an isotropic emitter (with an ideal mirror behind it) inside the escape cone: 1 − cos θc. */
+export function escapeConeFraction(nInside: number, nOutside = 1): number {
+  const s = nOutside / nInside
+  return s >= 1 ? 1 : 1 - Math.sqrt(1 - s * s)
 }
