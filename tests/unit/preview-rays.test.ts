@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest'
 import { patchSites, tracePreviewRays } from '../../app/utils/previewRays'
 import { scenarioSchema, type ScenarioInput } from '../../shared/types/scenario'
-import { createTally, packScene, traceRange, T_EXTRACTED } from '../../shared/optics'
+import { createTally, nearestSite, packScene, traceRange, T_EXTRACTED } from '../../shared/optics'
 
 const base = { emitter: { index: 1.5 }, reflector: { reflectance: 1 }, substrate: { index: 1.5, thicknessUm: 100 }, trace: { fresnel: 'none' } }
 
@@ -31,6 +31,30 @@ describe('preview rays', () => {
     }
     // below the cap tops every drawn point lies in the patch (3.5 rows of √3/2·10 µm, plus one pitch for a cap at the edge)
     for (const r of rays) for (const p of r.paths) for (const q of p) if (q[2]! <= 20) expect(Math.max(Math.abs(q[0]!), Math.abs(q[1]!))).toBeLessThan(41)
+  })
+
+  it('seed 7: drawn vertices between the face and the cap tops lie on a drawn cap (spherical cap sag, standard geometry), also after a patch wrap', () => {
+    const a = 5, h = 3, tDraw = 15
+    const sc = scenarioSchema.parse({ ...base, trace: { fresnel: 'averaged' }, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: h } })
+    const rays = tracePreviewRays(sc, { rays: 300, seed: 7, drawThicknessUm: tDraw })
+    const Rc = (a * a + h * h) / (2 * h)
+    const half = 3.5 * 10 * Math.sqrt(3) / 2
+    const site = new Float64Array(4)
+    let checked = 0
+    for (const r of rays) {
+      for (const path of r.paths) {
+        for (const [x, y, z] of path as Array<[number, number, number]>) {
+          if (!(z > tDraw + 1e-9 && z < tDraw + h - 1e-9)) continue
+          if (Math.abs(Math.abs(x) - half) < 1e-9 || Math.abs(Math.abs(y) - half) < 1e-9) continue // clipped at the patch edge
+          nearestSite(true, 10, x, y, site)
+          const rho = Math.hypot(x - site[0]!, y - site[1]!)
+          // a vertex in air or lens below the tops is a cap hit: z = t + √(Rc² − ρ²) − (Rc − h)
+          expect(Math.abs(z - (tDraw + Math.sqrt(Rc * Rc - rho * rho) - (Rc - h)))).toBeLessThan(1e-6)
+          checked++
+        }
+      }
+    }
+    expect(checked).toBeGreaterThan(100)
   })
 
   it('patch sites: hexagonal rows are offset by half a pitch and √3/2 pitch apart; square is a grid', () => {
