@@ -122,7 +122,7 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
  * diffuseFraction, else mirrored). Going up: into the substrate; TIR there leaves the ray guided in the
  * emitter layers (waveguided); a Fresnel reflection sends it down to the reflector.
  */
-export function emitterStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
+export function emitterStep(ray: Ray, st: Stack): number {
   if (ray.dz < 0) {
     if (draw(ray) >= st.reflectance) return end(ray, T_REFLECTOR)
     ray.bounces++
@@ -135,7 +135,6 @@ export function emitterStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   const c = flatCrossing(ray, true, st.nEmitter, st.nSubstrate, st.fresnel && st.nEmitter !== st.nSubstrate)
   if (c === CROSS_TIR) return end(ray, T_WAVEGUIDED)
   if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_EMITTER }
-  void rec
   return MEDIUM_SUBSTRATE
 }
 
@@ -260,7 +259,7 @@ export function traceRay(ray: Ray, st: Stack, rec?: RayRecorder): void {
     if (++ray.events > st.maxEvents) { ray.end = T_UNRESOLVED; break }
     ray.medium = medium
     switch (medium) {
-      case MEDIUM_EMITTER: medium = emitterStep(ray, st, rec); break
+      case MEDIUM_EMITTER: medium = emitterStep(ray, st); break // nothing moves in the zero-thickness layer
       case MEDIUM_SUBSTRATE: medium = substrateStep(ray, st, rec); break
       case MEDIUM_LENS: medium = lensStep(ray, st, rec); break
       default: medium = airStep(ray, st, rec); break
