@@ -13,7 +13,7 @@ export const WARN_SHARE = 0.25
 
 export interface CellCost {
   cellIndex: number
-  /** Estimated encounters per device ray, companion included (a lower bound when the pilot ran out of budget). */
+  /** Estimated encounters per ray of the costlier stream, device or companion (a lower bound when exhausted). */
   eventsPerRay: number
   /** Pilot rays (device stream) that ended unresolved. */
   unresolved: number
@@ -43,7 +43,7 @@ export function pilotCost(scenario: Scenario, seed: number, streamBudget: number
   const dev = t.device[T_EVENTS]!, pl = t.planar?.[T_EVENTS] ?? 0
   return {
     cellIndex,
-    eventsPerRay: (dev + pl) / t.device[T_RAYS]!,
+    eventsPerRay: Math.max(dev, pl) / t.device[T_RAYS]!,
     unresolved: t.device[T_UNRESOLVED]!,
     exhausted: dev >= budget || pl >= budget,
   }
@@ -59,20 +59,20 @@ export function chunkEventBudget(batchEvents: number | null, batchRays: number, 
 }
 
 function fmt(n: number): string {
-  return n >= 100 ? Math.round(n).toLocaleString('en-US').replace(/,/g, ' ') : n.toPrecision(3)
+  return n >= 100 ? Math.round(n).toLocaleString('en-US').replace(/,/g, ' ') : String(Number(n.toPrecision(3)))
 }
 
 /**
- * Verdict for the cells of a run. `batchEvents` is the encounters a batch of `batchRays` rays may spend (device and
- * companion together).
+ * Verdict for the cells of a run. `batchEvents` is the encounters a batch of `batchRays` rays may spend, half for
+ * the device stream and half for the companion (as the worker splits it: chunkEventBudget).
  */
 export function judgeCost(cells: Array<{ index: number; scenario: Scenario }>, seed: number, batchRays: number, batchEvents: number): CostVerdict {
-  const perRay = batchEvents / batchRays
+  const perRay = batchEvents / (2 * batchRays)
   let worst: CellCost | null = null
   let worstUnresolved: CellCost | null = null
   for (const i of pilotCells(cells.length)) {
     const c = cells[i]!
-    const cost = pilotCost(c.scenario, seed, perRay / 2, c.index)
+    const cost = pilotCost(c.scenario, seed, perRay, c.index)
     if (!worst || cost.eventsPerRay > worst.eventsPerRay || cost.exhausted) worst = cost
     if (cost.unresolved > 0 && (!worstUnresolved || cost.unresolved > worstUnresolved.unresolved)) worstUnresolved = cost
     if (cost.exhausted) break

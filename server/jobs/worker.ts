@@ -252,7 +252,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
     // The event budget keeps a batch well inside its expiry; one that still runs long (an overloaded machine) is
     // stopped a little before pg-boss would expire it and failed for good, so a retry cannot hold a thread as long again.
     const timer = setTimeout(() => ac.abort(new TooSlow(
-      `the batch took longer than its ${expireInSeconds} s limit on the tracing thread; it was stopped and not retried`)),
+      `the batch took longer than its ${Math.round(expireInSeconds)} s limit on the tracing thread; it was stopped and not retried`)),
     expireInSeconds * 900)
     const t0 = performance.now()
     try {

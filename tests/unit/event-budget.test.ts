@@ -70,14 +70,14 @@ describe('event budget of one call', () => {
 })
 
 describe('pilot at creation', () => {
-  // Production defaults: 200 000-ray batches, 1.2·10⁸ encounters each (600 per ray).
+  // Production defaults: 200 000-ray batches, 1.2·10⁸ encounters each (300 per ray on each stream).
   it('refuses the lossless near-flat cavity in the trade\'s words', () => {
     const v = judgeCost([{ index: 0, scenario: cavity }], 1, 200_000, 1.2e8)
     expect(v.refuse).toMatch(/too costly to trace: a pilot of 256 rays took more than .* encounters per ray.*lower the reflectance/)
     expect(v.worst!.exhausted).toBe(true)
   })
 
-  it('accepts an ordinary hex film without a warning (about 10 encounters per ray, device and companion)', () => {
+  it('accepts an ordinary hex film without a warning (about 7.6 encounters per device ray, measured)', () => {
     const v = judgeCost([{ index: 0, scenario: hex }], 1, 200_000, 1.2e8)
     expect(v.refuse).toBeNull()
     expect(v.warnings).toEqual([])
