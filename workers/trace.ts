@@ -16,6 +16,8 @@ export interface TraceTask {
   firstRay: number
   rayCount: number
   seed: number
+  /** Encounters each stream of this chunk may spend (traceRange); rays past it are counted unresolved. */
+  eventBudget?: number
   abortFlag?: SharedArrayBuffer
 }
 
@@ -36,6 +38,6 @@ export default function traceTask(task: TraceTask): ArrayBuffer {
   const run = runFor(task)
   const flag = task.abortFlag ? new Int32Array(task.abortFlag) : null
   const shouldStop = flag ? () => Atomics.load(flag, 0) !== 0 : undefined
-  const t = traceChunk(run, task.firstRay, task.rayCount, task.seed, shouldStop)
+  const t = traceChunk(run, task.firstRay, task.rayCount, task.seed, shouldStop, task.eventBudget ?? Infinity)
   return move(runTalliesToBuffer(t)) as unknown as ArrayBuffer
 }

@@ -95,6 +95,12 @@ export const runs = pgTable('runs', {
   targetStdErr: doublePrecision('target_std_err'),
   rayCap: bigint('ray_cap', { mode: 'number' }),
   batchRays: integer('batch_rays').notNull(),
+  /** Rays this run holds against the team's ray limit: its whole cost (a precision run's ray cap, not its first round). */
+  raysReserved: bigint('rays_reserved', { mode: 'number' }),
+  /** Interface/reflector encounters one batch may spend (both streams); rays past it are counted unresolved. */
+  batchEvents: bigint('batch_events', { mode: 'number' }),
+  /** Cost warnings from the pilot trace at creation, shown on the run page. */
+  warnings: jsonb('warnings').$type<string[]>().notNull().default(sql`'[]'::jsonb`),
   status: runStatusEnum('status').notNull().default('queued'),
   cellsTotal: integer('cells_total').notNull(),
   cellsFinished: integer('cells_finished').notNull().default(0),

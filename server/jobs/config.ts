@@ -22,6 +22,13 @@ export function jobSettings() {
     /** A batch not finished in this time is taken from its worker and retried (pg-boss expiry). */
     expireSeconds: envInt('LENSFIELD_JOB_EXPIRE_SECONDS', 120, 1),
     retryLimit: envInt('LENSFIELD_JOB_RETRY_LIMIT', 4, 0),
+    /**
+     * Interface/reflector encounters one batch may spend (device and companion together); rays past it are counted
+     * unresolved. Default: 10⁶ per second of expiry, i.e. a quarter of the expiry at 4·10⁶ encounters/s, the slowest
+     * rate measured here (hex caps, air search on every encounter; 22·10⁶/s on flat stacks), so a batch ends well
+     * within its expiry even with the batch's chunks queued behind other batches on the same thread.
+     */
+    batchEvents: envInt('LENSFIELD_BATCH_EVENTS', 1_000_000 * envInt('LENSFIELD_JOB_EXPIRE_SECONDS', 120, 1), 1000),
     retryDelaySeconds: envInt('LENSFIELD_JOB_RETRY_DELAY_SECONDS', 2, 0),
     /** How often pg-boss looks for expired jobs. */
     maintenanceSeconds: envInt('LENSFIELD_QUEUE_MAINTENANCE_SECONDS', 30, 1),

@@ -15,6 +15,7 @@ import { runBatches, runCells, runs, type Run, type RunCell } from '../db/schema
 import { usePool } from '../utils/db'
 import { batchJobOptions, useBoss } from './boss'
 import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH } from './config'
+import { judgeCost } from './cost'
 
 export type TxDb = NodePgDatabase<typeof schema>
 
@@ -66,13 +67,18 @@ export function planBatches(firstRay: number, rays: number, batchRays: number, f
   return out
 }
 
-/** The jobs pg-boss stores for planned batches of one cell. */
-export function batchJobs(cellId: string, batches: PlannedBatch[]) {
+/**
+ * The jobs pg-boss stores for planned batches of one cell. Fair sharing between teams: a team's n-th waiting batch
+ * gets priority −n (`queuedAhead` = the team's batches already waiting), and the queue hands out the highest
+ * priority first, so teams are served in turn and a small run is not stuck behind another team's long sweep.
+ */
+export function batchJobs(cellId: string, batches: PlannedBatch[], queuedAhead = 0) {
   const opts = batchJobOptions()
-  return batches.map((b) => ({
+  return batches.map((b, i) => ({
     id: b.jobId,
     name: QUEUE_BATCH,
     data: { cellId, batchIndex: b.batchIndex },
+    priority: -Math.min(queuedAhead + i, 2 ** 31 - 1),
     expireInSeconds: opts.expireInSeconds,
     retryLimit: opts.retryLimit,
     retryDelay: opts.retryDelay,
@@ -100,13 +106,26 @@ export interface CreateRunInput {
   figure?: Figure
 }
 
-/** Rays the team still has waiting in queued or running runs (device and planar companion). */
+/**
+ * Rays the team still has waiting in queued or running runs (device and planar companion): what each run reserved
+ * (a precision run its ray cap), less what it has traced.
+ */
 async function teamOutstandingRays(tx: TxDb, teamId: string): Promise<number> {
   const r = await tx.execute(sql`
-    SELECT COALESCE(SUM(GREATEST(r.rays_planned - r.rays_done, 0)), 0)::bigint AS n
+    SELECT COALESCE(SUM(GREATEST(COALESCE(r.rays_reserved, r.rays_planned) - r.rays_done, 0)), 0)::bigint AS n
     FROM runs r JOIN projects p ON p.id = r.project_id
     WHERE p.team_id = ${teamId} AND r.status IN ('queued', 'running')`)
   return Number((r.rows[0] as { n: string }).n)
+}
+
+/** Batches waiting in the queue for the team that owns `runId` (the fair-sharing priority counts from it). */
+export async function teamQueuedBatches(client: pg.PoolClient, runId: string): Promise<number> {
+  const { rows: [r] } = await client.query(
+    `SELECT count(*)::int AS n FROM run_batches b JOIN run_cells c ON c.id = b.cell_id JOIN runs r ON r.id = c.run_id
+       JOIN projects p ON p.id = r.project_id
+     WHERE p.team_id = (SELECT p2.team_id FROM runs r2 JOIN projects p2 ON p2.id = r2.project_id WHERE r2.id = $1)
+       AND b.status = 'queued' AND r.status IN ('queued', 'running')`, [runId])
+  return r.n as number
 }
 
 export async function createRun(input: CreateRunInput): Promise<Run> {
@@ -135,8 +154,13 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
   const companion = (c: SweepCell) => (c.feasible && c.scenario.lensArray ? 2 : 1)
   const cost = feasible.reduce((n, c) => n + (raysPerCell ?? rayCap!) * companion(c), 0)
   const planned = feasible.reduce((n, c) => n + firstRound * companion(c), 0)
+  // Pilot trace before anything is stored: refuse what no batch could finish, keep warnings for what is costly.
+  const verdict = judgeCost(feasible.map((c) => ({ index: c.index, scenario: c.scenario })), seed, settings.batchRays, settings.batchEvents)
+  if (verdict.refuse) throw new RunRequestError(verdict.refuse, 422)
 
   return withTransaction(async (tx, client) => {
+    // One creator per team at a time (held to commit), so concurrent requests cannot all pass the check below.
+    await client.query(`SELECT pg_advisory_xact_lock(hashtext('lensfield-team-rays'), hashtext($1))`, [input.teamId])
     const outstanding = await teamOutstandingRays(tx, input.teamId)
     if (outstanding + cost > settings.teamRayLimit) {
       throw new RunRequestError(
@@ -162,6 +186,9 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
       targetStdErr,
       rayCap,
       batchRays: settings.batchRays,
+      raysReserved: cost,
+      batchEvents: settings.batchEvents,
+      warnings: verdict.warnings,
       cellsTotal: cells.length,
       cellsFinished: infeasibleCount,
       raysPlanned: planned,
@@ -181,11 +208,13 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     }))).returning({ id: runCells.id, cellIndex: runCells.cellIndex, status: runCells.status })
     const jobs: ReturnType<typeof batchJobs> = []
     const batchRows: Array<typeof runBatches.$inferInsert> = []
+    let queuedAhead = await teamQueuedBatches(client, run!.id)
     for (const cell of cellRows) {
       if (cell.status !== 'queued') continue
       const planned = planBatches(0, firstRound, settings.batchRays)
       for (const b of planned) batchRows.push({ cellId: cell.id, ...b })
-      jobs.push(...batchJobs(cell.id, planned))
+      jobs.push(...batchJobs(cell.id, planned, queuedAhead))
+      queuedAhead += planned.length
     }
     // Inserted in slices: one statement carries at most a few thousand parameters.
     for (let i = 0; i < batchRows.length; i += 500) await tx.insert(runBatches).values(batchRows.slice(i, i + 500))

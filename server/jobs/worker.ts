@@ -13,8 +13,9 @@ import { useBoss } from './boss'
 import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH, QUEUE_DEAD } from './config'
 import { listen } from './listen'
 import { createTracePool, defaultThreads } from './pool'
-import { batchJobs, bestCell, enqueueInTransaction, planBatches, tallyFromBytes, tallyToBytes, withTransaction, type CellSummary } from './runs'
+import { batchJobs, bestCell, enqueueInTransaction, planBatches, tallyFromBytes, tallyToBytes, teamQueuedBatches, withTransaction, type CellSummary } from './runs'
 import { reportRunClosed } from './run-mail'
+import { chunkEventBudget } from './cost'
 
 interface BatchJobData { cellId: string; batchIndex: number }
 
@@ -119,7 +120,7 @@ export async function commitBatch(cellId: string, batchIndex: number, tallies: R
             `INSERT INTO run_batches (cell_id, batch_index, first_ray, ray_count, job_id) VALUES ($1, $2, $3, $4, $5)`,
             [cellId, b.batchIndex, b.firstRay, b.rayCount, b.jobId])
         }
-        await enqueueInTransaction(client, batchJobs(cellId, planned))
+        await enqueueInTransaction(client, batchJobs(cellId, planned, await teamQueuedBatches(client, runId)))
         cellUpdate += `, rays_planned = rays_planned + ${addedRays}`
       } else {
         const stopReason = target === null ? 'rays' : result.extractionStdErr <= target ? 'target' : 'cap'
@@ -184,13 +185,17 @@ export interface BatchWorker {
 }
 
 class Cancelled extends Error {}
+/** A batch that ran past its time: failed once, never retried (the same rays would take as long again). */
+class TooSlow extends Error {}
 
 /** Traces one batch on the pool; chunk boundaries follow the core's fixed chunking, so results never depend on it. */
-async function traceBatch(pool: Piscina, scenario: unknown, firstRay: number, rayCount: number, seed: number, signal: AbortSignal): Promise<RunTallies> {
+async function traceBatch(pool: Piscina, scenario: unknown, firstRay: number, rayCount: number, seed: number,
+  budget: { batchEvents: number | null; batchRays: number }, signal: AbortSignal): Promise<RunTallies> {
   const tasks: Array<Promise<ArrayBuffer>> = []
   for (let first = firstRay; first < firstRay + rayCount; first += CHUNK_RAYS) {
     const count = Math.min(CHUNK_RAYS, firstRay + rayCount - first)
-    tasks.push(pool.run({ scenario, firstRay: first, rayCount: count, seed }, { signal }))
+    const eventBudget = chunkEventBudget(budget.batchEvents, budget.batchRays, count)
+    tasks.push(pool.run({ scenario, firstRay: first, rayCount: count, seed, eventBudget }, { signal }))
   }
   const bufs = await Promise.all(tasks)
   let total: RunTallies | null = null
@@ -225,7 +230,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
   const handle = async (data: BatchJobData, expireInSeconds: number) => {
     const { rows: [row] } = await db.query(
       `SELECT b.status AS batch_status, b.first_ray, b.ray_count, c.run_id, c.status AS cell_status, c.scenario, c.seed,
-              r.status AS run_status
+              r.status AS run_status, r.batch_events, r.batch_rays
        FROM run_batches b JOIN run_cells c ON c.id = b.cell_id JOIN runs r ON r.id = c.run_id
        WHERE b.cell_id = $1 AND b.batch_index = $2`, [data.cellId, data.batchIndex])
     if (!row || row.batch_status !== 'queued' || !OPEN.includes(row.cell_status) || !OPEN.includes(row.run_status)) return { skipped: true }
@@ -244,15 +249,26 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
     let set = active.get(runId)
     if (!set) active.set(runId, (set = new Set()))
     set.add(ac)
-    // pg-boss gives up on the job after its expiry; stop computing then too, so a retry does not race this one.
-    const timer = setTimeout(() => ac.abort(new Error(`batch exceeded its ${expireInSeconds} s expiry`)), expireInSeconds * 1000)
+    // The event budget keeps a batch well inside its expiry; one that still runs long (an overloaded machine) is
+    // stopped a little before pg-boss would expire it and failed for good, so a retry cannot hold a thread as long again.
+    const timer = setTimeout(() => ac.abort(new TooSlow(
+      `the batch took longer than its ${Math.round(expireInSeconds)} s limit on the tracing thread; it was stopped and not retried`)),
+    expireInSeconds * 900)
     const t0 = performance.now()
     try {
-      const tallies = await traceBatch(pool, row.scenario, Number(row.first_ray), row.ray_count, Number(row.seed), ac.signal)
+      const tallies = await traceBatch(pool, row.scenario, Number(row.first_ray), row.ray_count, Number(row.seed),
+        { batchEvents: row.batch_events === null ? null : Number(row.batch_events), batchRays: row.batch_rays }, ac.signal)
       await commitBatch(data.cellId, data.batchIndex, tallies, performance.now() - t0, name)
       return { rays: row.ray_count }
     } catch (err) {
       if (ac.signal.reason instanceof Cancelled) return { cancelled: true }
+      if (ac.signal.reason instanceof TooSlow) {
+        const why = ac.signal.reason.message
+        await db.query(`UPDATE run_batches SET error = $3 WHERE cell_id = $1 AND batch_index = $2`,
+          [data.cellId, data.batchIndex, why]).catch(() => {})
+        await failBatch(data.cellId, data.batchIndex, why)
+        return { failed: why }
+      }
       const message = err instanceof Error ? err.message : String(err)
       await db.query(`UPDATE run_batches SET error = $3 WHERE cell_id = $1 AND batch_index = $2`,
         [data.cellId, data.batchIndex, message.slice(0, 500)]).catch(() => {})

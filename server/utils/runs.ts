@@ -29,7 +29,7 @@ export async function requireRunRole(
   return { user, project: row.project, run: row.run, role: row.role }
 }
 
-/** Validates access to the design, then creates the run or sweep; request problems become 400/429. */
+/** Validates access to the design, then creates the run or sweep; request problems become 400/422/429. */
 export async function startRunFromRequest(
   event: H3Event,
   body: { designId: string } & Omit<CreateRunInput, 'kind' | 'projectId' | 'teamId' | 'design' | 'userId'>,
@@ -50,7 +50,7 @@ export async function startRunFromRequest(
     if (err instanceof RunRequestError) {
       throw createError({
         statusCode: err.statusCode,
-        statusMessage: err.statusCode === 429 ? 'Too Many Requests' : 'Bad Request',
+        statusMessage: err.statusCode === 429 ? 'Too Many Requests' : err.statusCode === 422 ? 'Unprocessable Entity' : 'Bad Request',
         message: err.message,
         data: { details: err.details },
       })

@@ -41,14 +41,18 @@ export function planChunks(rays: number, chunkRays = CHUNK_RAYS): Array<[number,
   return out
 }
 
-/** Traces one ray range of the device and of its planar companion. */
-export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, seed: number, shouldStop?: () => boolean): RunTallies {
+/**
+ * Traces one ray range of the device and of its planar companion. `eventBudget` (encounters) applies to each of
+ * the two streams separately (see traceRange).
+ */
+export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, seed: number, shouldStop?: () => boolean,
+  eventBudget = Infinity): RunTallies {
   const device = createTally()
-  traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE)
+  traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE, eventBudget)
   let planar: Tally | null = null
   if (run.planar) {
     planar = createTally()
-    traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR)
+    traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR, eventBudget)
   }
   return { device, planar }
 }

@@ -7,7 +7,9 @@
 // Reflector: absorbed with probability 1 − R (lost as reflector), else re-emitted cosine-weighted upward with
 // probability diffuseFraction, else mirrored. In the planar device with a specular reflector the lateral invariant
 // n·sinθ never changes, so a ray totally reflected at the top face can never escape: it ends at once as trapped.
-// More than maxEvents interface/reflector encounters: unresolved. Positions are wrapped to the nearest lattice site
+// More than maxEvents interface/reflector encounters: unresolved. A call may also carry an event budget for all its
+// rays (the batch's share): once it is spent, each ray left is cut short and counted unresolved too, so the work of
+// one call is bounded whatever the geometry, and decided by the ray stream alone (never by the clock). Positions are wrapped to the nearest lattice site
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
 // This is the fused loop, kept for speed: the readable model of the same life is steps.ts (one function per medium,
 // run by model.ts), and tests/unit/optics/model-equality.test.ts proves the two give bit-identical tallies. Physics
@@ -55,10 +57,11 @@ const hit = new Float64Array(3)
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
  * number of rays traced; `shouldStop` is polled every 4096 rays (an abort leaves a consistent partial tally).
+ * `eventBudget` caps the encounters of the whole call: a ray gets at most min(maxEvents, what is left of it).
  */
 export function traceRange(
   scene: PackedScene, firstRay: number, rayCount: number, seed: number, tally: Tally,
-  shouldStop?: () => boolean, streamId = 0,
+  shouldStop?: () => boolean, streamId = 0, eventBudget = Infinity,
 ): number {
   const hasLens = scene[S_HAS_LENS]! !== 0
   const nE = scene[S_N_EMITTER]!, nS = scene[S_N_SUBSTRATE]!, nL = scene[S_N_LENS]!
@@ -103,9 +106,11 @@ export function traceRange(
     let onCap = false, excludeSelf = false
     let events = 0
     let end = -1 // tally slot the ray ends in
+    const left = eventBudget - nEvents
+    const rayMax = left < maxEvents ? left : maxEvents
 
     while (end < 0) {
-      if (++events > maxEvents) { end = T_UNRESOLVED; break }
+      if (++events > rayMax) { end = T_UNRESOLVED; break }
       switch (med) {
         case MED_EMITTER: {
           if (dz < 0) {
