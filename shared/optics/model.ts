@@ -9,16 +9,23 @@ import { T_EVENTS, T_EXTRACTED, T_PIXEL_RAYS, T_RAYS, type Tally } from './tally
 
 export type { RayRecorder } from './steps'
 
-/** Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts added); returns rayCount. */
+/**
+ * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts added); returns rayCount.
+ * `eventBudget` caps the encounters of the whole call, as in traceRange: a ray gets at most min(maxEvents, what is
+ * left of the budget) and is cut short as unresolved beyond it.
+ */
 export function traceRangeModel(scene: PackedScene, firstRay: number, rayCount: number, seed: number, tally: Tally,
-  streamId = 0, recorder?: RayRecorder): number {
+  streamId = 0, recorder?: RayRecorder, eventBudget = Infinity): number {
   const st = stackOf(scene)
   const ray = createRay()
+  let spent = 0
   for (let r = 0; r < rayCount; r++) {
     resetRay(ray, seed, streamId, firstRay + r)
     if (recorder !== undefined) recorder.start(firstRay + r)
     launch(ray, st, recorder)
-    traceRay(ray, st, recorder)
+    const left = eventBudget - spent
+    traceRay(ray, st, recorder, left < st.maxEvents ? left : st.maxEvents)
+    spent += ray.events
     tally[T_EVENTS] = tally[T_EVENTS]! + ray.events
     tally[ray.end] = tally[ray.end]! + 1
     if (ray.end === T_EXTRACTED) scoreExit(tally, ray.dx, ray.dy, ray.dz, ray.x + ray.ox, ray.y + ray.oy, st.source, st.sourceAUm, st.sourceBUm)

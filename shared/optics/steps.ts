@@ -252,11 +252,14 @@ export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   return MEDIUM_LENS
 }
 
-/** Runs one launched ray to its end: more than maxEvents steps end it as unresolved. */
-export function traceRay(ray: Ray, st: Stack, rec?: RayRecorder): void {
+/**
+ * Runs one launched ray to its end: more than `maxEvents` steps (the scene's limit, or less when the caller's event
+ * budget is nearly spent) end it as unresolved.
+ */
+export function traceRay(ray: Ray, st: Stack, rec?: RayRecorder, maxEvents = st.maxEvents): void {
   let medium = ray.medium
   while (medium !== RAY_ENDED) {
-    if (++ray.events > st.maxEvents) { ray.end = T_UNRESOLVED; break }
+    if (++ray.events > maxEvents) { ray.end = T_UNRESOLVED; break }
     ray.medium = medium
     switch (medium) {
       case MEDIUM_EMITTER: medium = emitterStep(ray, st); break // nothing moves in the zero-thickness layer

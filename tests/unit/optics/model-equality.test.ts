@@ -64,6 +64,15 @@ describe('readable model = fused loop, bit for bit (seeds 41 and 42, streams 0 a
       }
     })
   }
+  it('a batch event budget that runs out mid-range cuts the same rays short in both (budget 9000 encounters)', () => {
+    const scene = packScene(scenarioSchema.parse(cases['hex hemispheres, isotropic']!))
+    const fused = createTally(), model = createTally()
+    traceRange(scene, 0, 2500, 7, fused, undefined, 0, 9000)
+    traceRangeModel(scene, 0, 2500, 7, model, 0, undefined, 9000)
+    expect(firstDifference(fused, model)).toBe('none')
+    // about 7.5 encounters a ray: 9000 is spent after ~1200 rays, every later ray ends unresolved
+    expect(fused[T_UNRESOLVED]!).toBeGreaterThan(1000)
+  })
   it('the event limit case does end rays as unresolved', () => {
     const scene = packScene(scenarioSchema.parse(cases['event limit of 6 (unresolved rays)']!))
     const t = createTally()
