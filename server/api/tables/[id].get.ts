@@ -7,5 +7,5 @@ export default defineEventHandler(async (event) => {
   const table = await getDataTable(useDb(), id)
   if (!table) throw createError({ statusCode: 404, statusMessage: 'Not Found', message: 'Table not found among your teams\' projects.' })
   await requireProjectRole(event, table.projectId, ANY_ROLE)
-  return { table: { ...describeTable(table), rows: table.rows } }
+  return { table: { ...describeTable(table), rows: table.rows, fittedRows: table.fittedRows } }
 })

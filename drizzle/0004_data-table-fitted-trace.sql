@@ -1,0 +1,2 @@
+ALTER TABLE "data_tables" ADD COLUMN "fit" jsonb;--> statement-breakpoint
+ALTER TABLE "data_tables" ADD COLUMN "fitted_rows" jsonb;
