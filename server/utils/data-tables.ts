@@ -100,7 +100,8 @@ export function tableUse(t: Pick<DataTable, 'kind' | 'rows'> & { fittedRows?: nu
     const n = rows.length
     const picked = n <= MAX_PROFILE_ROWS ? rows : Array.from({ length: MAX_PROFILE_ROWS }, (_, i) => rows[Math.round((i * (n - 1)) / (MAX_PROFILE_ROWS - 1))]!)
     const profile = picked.map((r) => [r[0]!, r[1]! - last[1]!])
-    return { lensArray: { shape: 'measured', profile, diameterUm: 2 * last[0]!, sagUm: first[1]! - last[1]! } }
+    // Sag to 1e-6 µm: a fitted profile's sag carries float noise far below anything a line makes or a trace resolves.
+    return { lensArray: { shape: 'measured', profile, diameterUm: 2 * last[0]!, sagUm: Number((first[1]! - last[1]!).toFixed(6)) } }
   }
   return null
 }

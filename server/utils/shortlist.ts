@@ -66,12 +66,17 @@ export async function editNote(db: Db, entry: ShortlistEntry, user: { id: string
   })
 }
 
-/** How an entry is named in the history ("Sweep A · cell 3 · Hex caps v2"), kept in the event so it stays
- * readable after the entry is removed. */
+/** How an entry is named ("Sweep A · seed 7 · cell 3 · Hex caps v2 “note”"): the same in the panel and the
+ * history; kept in the event so it stays readable after the entry is removed. */
+export function shortlistLabel(r: { run: string; seed: number; cell: number; design: string; version: number; note: string }) {
+  const note = r.note.trim()
+  return `${r.run} · seed ${r.seed} · cell ${r.cell} · ${r.design} v${r.version}${note ? ` “${note.length > 40 ? `${note.slice(0, 39)}…` : note}”` : ''}`
+}
+
 async function entryLabel(tx: DbOrTx, entryId: string): Promise<string> {
-  const [r] = await tx.select({ run: runs.name, cell: shortlistEntries.cellIndex, design: runs.designName, version: runs.designVersion })
+  const [r] = await tx.select({ run: runs.name, seed: runs.seed, cell: shortlistEntries.cellIndex, design: runs.designName, version: runs.designVersion, note: shortlistEntries.note })
     .from(shortlistEntries).innerJoin(runs, eq(runs.id, shortlistEntries.runId)).where(eq(shortlistEntries.id, entryId))
-  return r ? `${r.run} · cell ${r.cell} · ${r.design} v${r.version}` : 'a removed entry'
+  return r ? shortlistLabel(r) : 'a removed entry'
 }
 
 /**
@@ -147,7 +152,7 @@ export async function listShortlist(db: Db, projectId: string) {
   const comments = sql<number>`(SELECT count(*)::int FROM shortlist_comments c WHERE c.entry_id = ${shortlistEntries.id})`
   const rows = await db.select({
     entry: shortlistEntries, author, chooser, comments,
-    runName: runs.name, runKind: runs.kind, figure: runs.figure, designName: runs.designName, designVersion: runs.designVersion,
+    runName: runs.name, runSeed: runs.seed, runKind: runs.kind, figure: runs.figure, designName: runs.designName, designVersion: runs.designVersion,
     coordinates: runCells.coordinates, scenario: runCells.scenario, summary: runCells.summary, cellStatus: runCells.status, axes: runs.axes,
   }).from(shortlistEntries)
     .innerJoin(runs, eq(runs.id, shortlistEntries.runId))
@@ -161,7 +166,8 @@ export async function listShortlist(db: Db, projectId: string) {
       author: r.author,
       chosenByName: r.chooser,
       comments: r.comments,
-      run: { name: r.runName, kind: r.runKind, figure: r.figure, designName: r.designName, designVersion: r.designVersion, axes: r.axes },
+      label: shortlistLabel({ run: r.runName, seed: r.runSeed, cell: r.entry.cellIndex, design: r.designName, version: r.designVersion, note: r.entry.note }),
+      run: { name: r.runName, seed: r.runSeed, kind: r.runKind, figure: r.figure, designName: r.designName, designVersion: r.designVersion, axes: r.axes },
       cell: { status: r.cellStatus, coordinates: r.coordinates },
       figure: figureOf(r.summary as CellSummary | null, r.figure),
       summary: r.summary,

@@ -27,7 +27,7 @@ async function storedCount() {
   return r.n as number
 }
 
-// Spherical cap R = 10 µm cut at a = 5 µm: sag h = R − √(R² − a²) = 0.6699 µm (standard cap geometry), with a fixed
+// Spherical cap R = 10 µm cut at a = 5 µm: sag h = R − √(R² − a²) = 1.3397 µm (standard cap geometry), with a fixed
 // ±2 nm ripple and a 2 nm rise at the last point (profilometer noise of that size is common practice).
 const R = 10, a = 5
 const sphere = (r: number) => Math.sqrt(R * R - r * r) - Math.sqrt(R * R - a * a)

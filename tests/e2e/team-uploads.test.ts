@@ -29,7 +29,7 @@ async function api(method: string, path: string, body?: unknown, raw?: { text: s
   return { status: res.status, body: json, cookie: set?.split(';')[0] }
 }
 
-// Spherical cap R = 10 µm cut at a = 5 µm (sag R − √(R² − a²) = 0.670 µm, standard cap geometry) with a fixed
+// Spherical cap R = 10 µm cut at a = 5 µm (sag R − √(R² − a²) = 1.340 µm, standard cap geometry) with a fixed
 // ±2 nm ripple and a 2 nm rise at the rim: profilometer noise of that size is common practice.
 const sphere = (r: number) => Math.sqrt(100 - r * r) - Math.sqrt(75)
 const traceCsv = (bump = 0) => 'r_um,height_um\n' + Array.from({ length: 51 }, (_, i) => {
@@ -140,7 +140,7 @@ describe('shortlist', () => {
     await chooseRow('seed 8', 'Second trace confirms the figure')
     const dialog = page.getByTestId('confirm-move')
     await dialog.waitFor()
-    expect(await dialog.textContent()).toMatch(/is the chosen candidate now\. Move the mark to .*cell 0/)
+    expect(await dialog.textContent()).toMatch(/seed 7 · cell 0 .* is the chosen candidate now\. Move the mark to .*seed 8 · cell 0/)
     await shot(page, 'shortlist-01-confirm-move')
     await dialog.getByRole('button', { name: 'Keep the current choice' }).click()
     expect(await page.locator('tr', { hasText: 'seed 7' }).getByText('chosen', { exact: true }).count()).toBe(1)
@@ -148,7 +148,8 @@ describe('shortlist', () => {
     await dialog.getByRole('button', { name: 'Move the mark' }).click()
     await expect.poll(() => page.locator('tr', { hasText: 'seed 8' }).getByText('chosen', { exact: true }).count()).toBe(1)
     await page.getByRole('button', { name: 'History' }).click()
-    await expect.poll(() => page.getByText(/chose .*cell 0.* \(mark moved from .*cell 0.*\): “Second trace confirms the figure”/).count()).toBe(1)
+    // Two runs of one design: the seed and the note tell the entries apart.
+    await expect.poll(() => page.getByText(/chose .*· seed 8 · cell 0 · .*“seed 8” \(mark moved from .*· seed 7 · cell 0 · .*“seed 7”\): “Second trace confirms the figure”/).count()).toBe(1)
     expect(await page.getByText(/took the choice off .*\(replaced by /).count()).toBe(1)
     await shot(page, 'shortlist-02-history')
   })

@@ -54,7 +54,7 @@ describe('even-asphere least squares', () => {
 })
 
 describe('fitting a noisy trace and refusing what cannot be a cap', () => {
-  // A sphere R = 10 µm cut at r = 5 µm (sag 0.670 µm) with a fixed ±2 nm ripple: a 2 nm rise near the rim.
+  // A sphere R = 10 µm cut at r = 5 µm (sag R − √(R² − r²) = 1.340 µm) with a fixed ±2 nm ripple: a 2 nm rise near the rim.
   const sphere = (r: number) => Math.sqrt(100 - r * r) - Math.sqrt(75)
   const r = grid(51, 5)
   const noisy = r.map((v, i) => [v, sphere(v) + (i % 2 ? 0.002 : -0.002) + (i === 50 ? 0.004 : 0)])
