@@ -72,6 +72,7 @@ export async function storeDataTable(db: Db, opts: {
       rows: parsed.rows, rowCount: parsed.rows.length, uploadedBy: opts.userId,
       fit: fit ? { method: fit.method, rmsResidualNm: fit.rmsResidualNm, maxResidualNm: fit.maxResidualNm, smoothPoints: fit.smoothPoints, params: fit.params } : null,
       fittedRows: fit ? fit.rows : null,
+      sourceText: new TextDecoder('utf-8').decode(opts.bytes),
     }).returning()
     return describeTable(row!)
   } catch (err) {
@@ -84,7 +85,7 @@ export async function storeDataTable(db: Db, opts: {
 
 /** A table without its rows, plus how it is used in a scenario. */
 export function describeTable(t: DataTable) {
-  const { rows, fittedRows, ...rest } = t
+  const { rows, fittedRows, sourceText, ...rest } = t
   return { ...rest, use: tableUse(t) }
 }
 

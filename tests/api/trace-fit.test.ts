@@ -49,6 +49,7 @@ describe('stylus traces at upload', () => {
     expect(r.body.table.fit.rmsResidualNm).toBeLessThan(5)
     const t = (await owner.client.get(`/api/tables/${r.body.table.id}`)).body.table
     expect(t.rows).toEqual(csv(noisyRows).trim().split('\n').slice(2).map((l) => l.split(',').map(Number)))
+    expect(t.sourceText).toBe(csv(noisyRows)) // the file itself, comment line included
     for (let i = 1; i < t.fittedRows.length; i++) expect(t.fittedRows[i][1]).toBeLessThanOrEqual(t.fittedRows[i - 1][1])
     const prof = t.use.lensArray.profile as number[][]
     expect(prof[prof.length - 1]![1]).toBe(0)
