@@ -285,6 +285,12 @@ export const dataTables = pgTable('data_tables', {
   columns: jsonb('columns').$type<string[]>().notNull(),
   rows: jsonb('rows').$type<number[][]>().notNull(),
   rowCount: integer('row_count').notNull(),
+  /** A fitted stylus trace (lens profiles only): how it was fitted (method, RMS residual in nm, parameters) and the
+   * fitted [r_um, height_um] rows, which are what a scenario traces; `rows` keeps the raw trace as uploaded. */
+  fit: jsonb('fit').$type<Record<string, unknown>>(),
+  fittedRows: jsonb('fitted_rows').$type<number[][]>(),
+  /** The uploaded file as text, verbatim (comment lines with the instrument's metadata included). */
+  sourceText: text('source_text'),
   uploadedBy: text('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [uniqueIndex('data_tables_project_name_key').on(t.projectId, t.kind, t.name)])

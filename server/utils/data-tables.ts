@@ -6,6 +6,7 @@ import { and, desc, eq } from 'drizzle-orm'
 import { createError, getRequestHeader, readRawBody, type H3Event } from 'h3'
 import { dataTables, users, type DataTable } from '../db/schema'
 import { fileNameProblem, MAX_TABLE_BYTES, parseDataTable, type DataTableKind } from '../../shared/utils/csv-table'
+import { fitProblems, fitProfile, minFitPoints, type ProfileFitOptions } from '../../shared/utils/profile-fit'
 import { MAX_PROFILE_ROWS } from '../../shared/types/scenario'
 import type { Db } from './db'
 
@@ -32,10 +33,29 @@ export async function readUploadBody(event: H3Event): Promise<Uint8Array> {
   return body ? new Uint8Array(body) : new Uint8Array()
 }
 
-export async function storeDataTable(db: Db, opts: { projectId: string; kind: DataTableKind; name: string; fileName: string; userId: string; bytes: Uint8Array }) {
+const refuse = (messages: string[], errors: { line: number; message: string }[] = messages.map((message) => ({ line: Number(/^line (\d+)/.exec(message)?.[1] ?? 0), message }))) =>
+  createError({ statusCode: 422, statusMessage: 'Unprocessable Entity', message: `Nothing was stored. ${messages.join('; ')}`, data: { errors } })
+
+/** The fit of a lens-profile trace, or a 422 naming the line when the trace cannot be one cap. */
+function fitTrace(rows: number[][], lines: number[], fit: ProfileFitOptions) {
+  const need = minFitPoints(fit)
+  if (rows.length < need) throw refuse([`the ${fit.method} fit needs at least ${need} data rows; the trace has ${rows.length}`])
+  const result = fitProfile(rows, fit)
+  const problems = fitProblems(result, lines)
+  if (problems.length) throw refuse(problems)
+  return result
+}
+
+export async function storeDataTable(db: Db, opts: {
+  projectId: string; kind: DataTableKind; name: string; fileName: string; userId: string; bytes: Uint8Array
+  fit?: ProfileFitOptions | null
+}) {
   const nameProblem = fileNameProblem(opts.fileName)
   if (nameProblem) throw createError({ statusCode: 400, statusMessage: 'Bad Request', message: nameProblem })
-  const parsed = parseDataTable(opts.kind, opts.bytes)
+  if (opts.fit && opts.kind !== 'lens_profile') {
+    throw createError({ statusCode: 400, statusMessage: 'Bad Request', message: `fit applies to lens profiles only; a ${opts.kind} table is stored as uploaded (send fit=none)` })
+  }
+  const parsed = parseDataTable(opts.kind, opts.bytes, { trace: !!opts.fit })
   if (!parsed.ok) {
     const first = parsed.errors.slice(0, 5).map((e) => e.message).join('; ')
     throw createError({
@@ -45,10 +65,14 @@ export async function storeDataTable(db: Db, opts: { projectId: string; kind: Da
       data: { errors: parsed.errors },
     })
   }
+  const fit = opts.fit ? fitTrace(parsed.rows, parsed.lines!, opts.fit) : null
   try {
     const [row] = await db.insert(dataTables).values({
       projectId: opts.projectId, kind: opts.kind, name: opts.name, fileName: opts.fileName, columns: parsed.columns,
       rows: parsed.rows, rowCount: parsed.rows.length, uploadedBy: opts.userId,
+      fit: fit ? { method: fit.method, rmsResidualNm: fit.rmsResidualNm, maxResidualNm: fit.maxResidualNm, smoothPoints: fit.smoothPoints, params: fit.params } : null,
+      fittedRows: fit ? fit.rows : null,
+      sourceText: new TextDecoder('utf-8').decode(opts.bytes),
     }).returning()
     return describeTable(row!)
   } catch (err) {
@@ -61,21 +85,24 @@ export async function storeDataTable(db: Db, opts: { projectId: string; kind: Da
 
 /** A table without its rows, plus how it is used in a scenario. */
 export function describeTable(t: DataTable) {
-  const { rows, ...rest } = t
+  const { rows, fittedRows, sourceText, ...rest } = t
   return { ...rest, use: tableUse(t) }
 }
 
-/** The scenario fragment a table becomes (lens profile → lensArray fields, angular profile → angularProfile). */
-export function tableUse(t: Pick<DataTable, 'kind' | 'rows'>) {
+/** The scenario fragment a table becomes (lens profile → lensArray fields, angular profile → angularProfile). A
+ * fitted trace becomes its fitted rows; the raw rows stay stored beside them. */
+export function tableUse(t: Pick<DataTable, 'kind' | 'rows'> & { fittedRows?: number[][] | null }) {
   if (t.kind === 'angular_profile') return { angularProfile: { table: t.rows } }
   if (t.kind === 'lens_profile') {
-    const first = t.rows[0]!, last = t.rows[t.rows.length - 1]!
+    const rows = t.fittedRows ?? t.rows
+    const first = rows[0]!, last = rows[rows.length - 1]!
     // Heights relative to the rim row: the scenario's profile starts at the land. A long trace is thinned to
     // MAX_PROFILE_ROWS evenly spaced rows (first and last kept) so every run cell's stored scenario stays small.
-    const n = t.rows.length
-    const picked = n <= MAX_PROFILE_ROWS ? t.rows : Array.from({ length: MAX_PROFILE_ROWS }, (_, i) => t.rows[Math.round((i * (n - 1)) / (MAX_PROFILE_ROWS - 1))]!)
+    const n = rows.length
+    const picked = n <= MAX_PROFILE_ROWS ? rows : Array.from({ length: MAX_PROFILE_ROWS }, (_, i) => rows[Math.round((i * (n - 1)) / (MAX_PROFILE_ROWS - 1))]!)
     const profile = picked.map((r) => [r[0]!, r[1]! - last[1]!])
-    return { lensArray: { shape: 'measured', profile, diameterUm: 2 * last[0]!, sagUm: first[1]! - last[1]! } }
+    // Sag to 1e-6 µm: a fitted profile's sag carries float noise far below anything a line makes or a trace resolves.
+    return { lensArray: { shape: 'measured', profile, diameterUm: 2 * last[0]!, sagUm: Number((first[1]! - last[1]!).toFixed(6)) } }
   }
   return null
 }
@@ -83,7 +110,7 @@ export function tableUse(t: Pick<DataTable, 'kind' | 'rows'>) {
 export function listDataTables(db: Db, projectId: string) {
   return db.select({
     id: dataTables.id, kind: dataTables.kind, name: dataTables.name, fileName: dataTables.fileName, columns: dataTables.columns,
-    rowCount: dataTables.rowCount, createdAt: dataTables.createdAt, uploadedBy: users.name,
+    rowCount: dataTables.rowCount, fit: dataTables.fit, createdAt: dataTables.createdAt, uploadedBy: users.name,
   }).from(dataTables).leftJoin(users, eq(users.id, dataTables.uploadedBy))
     .where(eq(dataTables.projectId, projectId)).orderBy(desc(dataTables.createdAt))
 }

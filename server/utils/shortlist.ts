@@ -44,7 +44,7 @@ export async function addToShortlist(db: Db, projectId: string, userId: string, 
   try {
     return await db.transaction(async (tx) => {
       const [entry] = await tx.insert(shortlistEntries).values({ projectId, runId: input.runId, cellIndex: input.cellIndex, note: input.note, authorId: userId }).returning()
-      await logEvent(tx, projectId, entry!.id, userId, 'added', { runId: input.runId, cellIndex: input.cellIndex, note: input.note })
+      await logEvent(tx, projectId, entry!.id, userId, 'added', { runId: input.runId, cellIndex: input.cellIndex, note: input.note, entry: await entryLabel(tx, entry!.id) })
       return entry!
     })
   } catch (err) {
@@ -61,23 +61,53 @@ export async function editNote(db: Db, entry: ShortlistEntry, user: { id: string
   }
   return db.transaction(async (tx) => {
     const [row] = await tx.update(shortlistEntries).set({ note, updatedAt: new Date() }).where(eq(shortlistEntries.id, entry.id)).returning()
-    await logEvent(tx, entry.projectId, entry.id, user.id, 'note-edited', { from: entry.note, to: note })
+    await logEvent(tx, entry.projectId, entry.id, user.id, 'note-edited', { from: entry.note, to: note, entry: await entryLabel(tx, entry.id) })
     return row!
   })
 }
 
-/** Marks the entry chosen (the previous choice, if any, loses the mark in the same transaction). */
-export async function chooseEntry(db: Db, entry: ShortlistEntry, userId: string, reason: string) {
+/** How an entry is named ("Sweep A · seed 7 · cell 3 · Hex caps v2 “note”"): the same in the panel and the
+ * history; kept in the event so it stays readable after the entry is removed. */
+export function shortlistLabel(r: { run: string; seed: number; cell: number; design: string; version: number; note: string }) {
+  const note = r.note.trim()
+  return `${r.run} · seed ${r.seed} · cell ${r.cell} · ${r.design} v${r.version}${note ? ` “${note.length > 40 ? `${note.slice(0, 39)}…` : note}”` : ''}`
+}
+
+async function entryLabel(tx: DbOrTx, entryId: string): Promise<string> {
+  const [r] = await tx.select({ run: runs.name, seed: runs.seed, cell: shortlistEntries.cellIndex, design: runs.designName, version: runs.designVersion, note: shortlistEntries.note })
+    .from(shortlistEntries).innerJoin(runs, eq(runs.id, shortlistEntries.runId)).where(eq(shortlistEntries.id, entryId))
+  return r ? shortlistLabel(r) : 'a removed entry'
+}
+
+/**
+ * Marks the entry chosen. When another entry holds the mark, the lead must confirm the move (replaceChosen);
+ * otherwise 409 names the current choice. The previous choice loses the mark in the same transaction, and both
+ * events name both entries.
+ */
+export async function chooseEntry(db: Db, entry: ShortlistEntry, userId: string, reason: string, replaceChosen = false) {
   return db.transaction(async (tx) => {
     // Lock the project's entries so two leads choosing at once are serialised.
     await tx.execute(sql`SELECT id FROM shortlist_entries WHERE project_id = ${entry.projectId} FOR UPDATE`)
-    const [previous] = await tx.update(shortlistEntries).set({ chosen: false, chosenReason: null, chosenBy: null, chosenAt: null, updatedAt: new Date() })
-      .where(and(eq(shortlistEntries.projectId, entry.projectId), eq(shortlistEntries.chosen, true))).returning({ id: shortlistEntries.id })
-    if (previous && previous.id !== entry.id) await logEvent(tx, entry.projectId, previous.id, userId, 'unchosen', { replacedBy: entry.id })
+    const [current] = await tx.select({ id: shortlistEntries.id }).from(shortlistEntries)
+      .where(and(eq(shortlistEntries.projectId, entry.projectId), eq(shortlistEntries.chosen, true)))
+    const label = await entryLabel(tx, entry.id)
+    const previousLabel = current && current.id !== entry.id ? await entryLabel(tx, current.id) : null
+    if (previousLabel && !replaceChosen) {
+      throw createError({
+        statusCode: 409, statusMessage: 'Conflict',
+        message: `${previousLabel} is the chosen candidate now. Confirm moving the mark to ${label} (replaceChosen: true), or keep the current choice.`,
+        data: { chosenEntryId: current!.id, chosenLabel: previousLabel },
+      })
+    }
+    if (current) {
+      await tx.update(shortlistEntries).set({ chosen: false, chosenReason: null, chosenBy: null, chosenAt: null, updatedAt: new Date() })
+        .where(eq(shortlistEntries.id, current.id))
+    }
+    if (previousLabel) await logEvent(tx, entry.projectId, current!.id, userId, 'unchosen', { entry: previousLabel, replacedBy: entry.id, replacedByLabel: label })
     const now = new Date()
     const [row] = await tx.update(shortlistEntries).set({ chosen: true, chosenReason: reason, chosenBy: userId, chosenAt: now, updatedAt: now })
       .where(eq(shortlistEntries.id, entry.id)).returning()
-    await logEvent(tx, entry.projectId, entry.id, userId, 'chosen', { reason, previous: previous?.id ?? null })
+    await logEvent(tx, entry.projectId, entry.id, userId, 'chosen', { reason, entry: label, previous: previousLabel ? current!.id : null, previousLabel })
     return row!
   })
 }
@@ -87,7 +117,7 @@ export async function unchooseEntry(db: Db, entry: ShortlistEntry, userId: strin
   return db.transaction(async (tx) => {
     const [row] = await tx.update(shortlistEntries).set({ chosen: false, chosenReason: null, chosenBy: null, chosenAt: null, updatedAt: new Date() })
       .where(eq(shortlistEntries.id, entry.id)).returning()
-    await logEvent(tx, entry.projectId, entry.id, userId, 'unchosen', { reason: entry.chosenReason })
+    await logEvent(tx, entry.projectId, entry.id, userId, 'unchosen', { reason: entry.chosenReason, entry: await entryLabel(tx, entry.id) })
     return row!
   })
 }
@@ -96,7 +126,7 @@ export async function removeEntry(db: Db, entry: ShortlistEntry, user: { id: str
   if (entry.chosen && role !== 'lead') throw createError({ statusCode: 403, statusMessage: 'Forbidden', message: 'The chosen candidate can only be removed by a lead.' })
   if (entry.authorId !== user.id && role !== 'lead') throw createError({ statusCode: 403, statusMessage: 'Forbidden', message: 'Only the author of an entry or a lead can remove it.' })
   await db.transaction(async (tx) => {
-    await logEvent(tx, entry.projectId, entry.id, user.id, 'removed', { runId: entry.runId, cellIndex: entry.cellIndex, note: entry.note })
+    await logEvent(tx, entry.projectId, entry.id, user.id, 'removed', { runId: entry.runId, cellIndex: entry.cellIndex, note: entry.note, entry: await entryLabel(tx, entry.id) })
     await tx.delete(shortlistEntries).where(eq(shortlistEntries.id, entry.id))
   })
 }
@@ -104,7 +134,7 @@ export async function removeEntry(db: Db, entry: ShortlistEntry, user: { id: str
 export async function addComment(db: Db, entry: ShortlistEntry, userId: string, body: string) {
   return db.transaction(async (tx) => {
     const [c] = await tx.insert(shortlistComments).values({ entryId: entry.id, authorId: userId, body }).returning()
-    await logEvent(tx, entry.projectId, entry.id, userId, 'commented', { commentId: c!.id })
+    await logEvent(tx, entry.projectId, entry.id, userId, 'commented', { commentId: c!.id, entry: await entryLabel(tx, entry.id) })
     return c!
   })
 }
@@ -122,7 +152,7 @@ export async function listShortlist(db: Db, projectId: string) {
   const comments = sql<number>`(SELECT count(*)::int FROM shortlist_comments c WHERE c.entry_id = ${shortlistEntries.id})`
   const rows = await db.select({
     entry: shortlistEntries, author, chooser, comments,
-    runName: runs.name, runKind: runs.kind, figure: runs.figure, designName: runs.designName, designVersion: runs.designVersion,
+    runName: runs.name, runSeed: runs.seed, runKind: runs.kind, figure: runs.figure, designName: runs.designName, designVersion: runs.designVersion,
     coordinates: runCells.coordinates, scenario: runCells.scenario, summary: runCells.summary, cellStatus: runCells.status, axes: runs.axes,
   }).from(shortlistEntries)
     .innerJoin(runs, eq(runs.id, shortlistEntries.runId))
@@ -136,7 +166,8 @@ export async function listShortlist(db: Db, projectId: string) {
       author: r.author,
       chosenByName: r.chooser,
       comments: r.comments,
-      run: { name: r.runName, kind: r.runKind, figure: r.figure, designName: r.designName, designVersion: r.designVersion, axes: r.axes },
+      label: shortlistLabel({ run: r.runName, seed: r.runSeed, cell: r.entry.cellIndex, design: r.designName, version: r.designVersion, note: r.entry.note }),
+      run: { name: r.runName, seed: r.runSeed, kind: r.runKind, figure: r.figure, designName: r.designName, designVersion: r.designVersion, axes: r.axes },
       cell: { status: r.cellStatus, coordinates: r.coordinates },
       figure: figureOf(r.summary as CellSummary | null, r.figure),
       summary: r.summary,

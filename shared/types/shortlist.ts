@@ -13,6 +13,8 @@ export const shortlistNoteSchema = z.object({ note })
 
 export const shortlistChooseSchema = z.object({
   reason: z.string({ error: 'reason is required' }).trim().min(3, { error: 'reason must say in a few words why this candidate is chosen' }).max(2000, { error: 'reason must be at most 2000 characters' }),
+  /** Required (true) when another entry holds the mark: moving it is confirmed, never silent. */
+  replaceChosen: z.boolean({ error: 'replaceChosen must be true or false' }).default(false),
 })
 
 export const shortlistCommentSchema = z.object({

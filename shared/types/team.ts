@@ -8,6 +8,16 @@ export const invitationCreateSchema = z.object({
   role: z.enum(ROLE_NAMES, { error: 'role must be one of lead, designer, viewer' }),
 })
 
+/** A member in the address: /api/teams/:id/members/:userId (user ids are lucia's text ids). */
+export const memberParamSchema = z.object({
+  id: z.uuid({ error: 'team id in the address must be a UUID' }),
+  userId: z.string().regex(/^[A-Za-z0-9_-]{1,64}$/, { error: 'userId in the address is not a Lensfield user id' }),
+})
+
+export const memberRoleSchema = z.object({
+  role: z.enum(ROLE_NAMES, { error: 'role must be one of lead, designer, viewer' }),
+})
+
 /** Link secrets are 43 base64url characters (32 random bytes). */
 export const linkTokenSchema = z.string({ error: 'token is required' }).regex(/^[A-Za-z0-9_-]{20,100}$/, { error: 'token is not a Lensfield link token: open the link from the mail again' })
 

@@ -12,6 +12,9 @@
 //   "=1+2", "-1+2", "@SUM(A1)" and "+A1" are refused as formulas. Such a cell would run as a formula when the
 //   table is exported and opened in a spreadsheet.
 // - Every other cell must be a plain decimal number (no thousands separators, no units); then per-kind checks.
+// - A lens profile to be fitted (`{ trace: true }`, see profile-fit.ts) may rise towards the rim and need not have
+//   its centre above the rim: the fit decides whether it is a cap. It must still start at r_um = 0, have r_um
+//   increasing and no negative heights.
 
 export type DataTableKind = 'lens_profile' | 'angular_profile' | 'refractive_index'
 
@@ -39,7 +42,7 @@ export const TABLE_COLUMNS: Record<DataTableKind, ColumnSpec[]> = {
 export interface TableLineError { line: number; column?: string; message: string }
 
 export type TableParseResult =
-  | { ok: true; columns: string[]; rows: number[][] }
+  | { ok: true; columns: string[]; rows: number[][]; lines?: number[] }
   | { ok: false; status: 413 | 415 | 422; errors: TableLineError[] }
 
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/
@@ -98,7 +101,7 @@ function splitCells(line: string, sep: string): string[] {
 /** Errors listed at most; the count of the rest is reported in a last line. */
 const MAX_ERRORS = 50
 
-export function parseDataTable(kind: DataTableKind, bytes: Uint8Array): TableParseResult {
+export function parseDataTable(kind: DataTableKind, bytes: Uint8Array, opts: { trace?: boolean } = {}): TableParseResult {
   if (bytes.byteLength > MAX_TABLE_BYTES) return { ok: false, status: 413, errors: [{ line: 0, message: `the file is ${bytes.byteLength} bytes; at most ${MAX_TABLE_BYTES} (2 MB) are accepted` }] }
   const binary = sniffBinary(bytes)
   if (binary) return { ok: false, status: 415, errors: [{ line: 1, message: binary }] }
@@ -167,14 +170,14 @@ export function parseDataTable(kind: DataTableKind, bytes: Uint8Array): TablePar
   if (rows.length < 2 && errors.length === 0) {
     return { ok: false, status: 422, errors: [{ line: lines.length, message: `the table needs at least 2 data rows; got ${rows.length}` }] }
   }
-  checkKind(kind, rows, lineOf, fail)
+  checkKind(kind, rows, lineOf, fail, opts.trace === true)
   errors.sort((x, y) => x.line - y.line)
   if (extraErrors) errors.push({ line: 0, message: `… and ${extraErrors} more problem(s)` })
   if (errors.length) return { ok: false, status: 422, errors }
-  return { ok: true, columns: spec.map((c) => c.name), rows }
+  return opts.trace ? { ok: true, columns: spec.map((c) => c.name), rows, lines: lineOf } : { ok: true, columns: spec.map((c) => c.name), rows }
 }
 
-function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail: (e: TableLineError) => void) {
+function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail: (e: TableLineError) => void, trace: boolean) {
   const [c0, c1, c2] = TABLE_COLUMNS[kind].map((c) => c.name)
   let prev: number | null = null
   let prevLine = 0
@@ -204,13 +207,13 @@ function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail
   if (kind === 'lens_profile' && good.length === rows.length) {
     const first = good[0]!, last = good[good.length - 1]!
     if (first[0] !== 0) fail({ line: lineOf[0]!, column: c0, message: `line ${lineOf[0]}, ${c0}: the profile must start at the lens centre (r_um = 0), got ${first[0]}` })
-    for (let i = 1; i < good.length; i++) {
+    for (let i = 1; i < good.length && !trace; i++) {
       if (good[i]![1]! > good[i - 1]![1]!) {
-        fail({ line: lineOf[i]!, column: c1, message: `line ${lineOf[i]}, ${c1}: height must not rise towards the rim (got ${good[i]![1]} after ${good[i - 1]![1]}); level or smooth the trace first` })
+        fail({ line: lineOf[i]!, column: c1, message: `line ${lineOf[i]}, ${c1}: height must not rise towards the rim (got ${good[i]![1]} after ${good[i - 1]![1]}); fit the trace at upload (isotonic or conic/asphere) or level it first` })
         break
       }
     }
-    if (!(first[1]! > last[1]!)) fail({ line: lineOf[0]!, column: c1, message: `line ${lineOf[0]}, ${c1}: the centre must be higher than the rim (a lens with sag > 0)` })
+    if (!trace && !(first[1]! > last[1]!)) fail({ line: lineOf[0]!, column: c1, message: `line ${lineOf[0]}, ${c1}: the centre must be higher than the rim (a lens with sag > 0)` })
   }
   if (kind === 'angular_profile' && good.length === rows.length && !good.some((r) => r[1]! > 0)) {
     fail({ line: lineOf[0]!, column: c1, message: 'at least one relative intensity must be above 0' })

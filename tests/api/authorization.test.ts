@@ -108,6 +108,9 @@ const MATRIX: Record<string, Row> = {
   // Teams and invitations.
   'GET /api/teams/:id/members': READ(),
   'GET /api/teams/:id/invitations': LEAD(200),
+  // Target: a fresh viewer of team A / of team B. Only a lead changes roles or removes members.
+  'PATCH /api/teams/:id/members/:userId': LEAD(200),
+  'DELETE /api/teams/:id/members/:userId': LEAD(200),
   'POST /api/teams/:id/invitations': LEAD(201),
   'DELETE /api/invitations/:id': LEAD(200),
 }
@@ -183,7 +186,7 @@ async function freshEntry(t: Team, chosen = false) {
   const runId = await freshRun(t)
   const r = await t.author.client.post(`/api/projects/${t.projectId}/shortlist`, { runId, cellIndex: 0, note: 'fixture' })
   expectStatus(r, 201, 'shortlist entry')
-  if (chosen) expectStatus(await t.lead.client.post(`/api/shortlist/${r.body.entry.id}/choose`, { reason: 'fixture choice' }), 200, 'choose')
+  if (chosen) expectStatus(await t.lead.client.post(`/api/shortlist/${r.body.entry.id}/choose`, { reason: 'fixture choice', replaceChosen: true }), 200, 'choose')
   return r.body.entry.id as string
 }
 
@@ -191,6 +194,13 @@ async function freshInvitation(t: Team) {
   const r = await t.lead.client.post(`/api/teams/${t.id}/invitations`, { email: uniqueEmail('invitee'), role: 'viewer' })
   expectStatus(r, 201, 'invitation')
   return r.body.invitation.id as string
+}
+
+/** A new account joined to the team as viewer (by a membership row, like A's designer and viewer). */
+async function freshMember(t: Team) {
+  const m = await account('authz-member')
+  await pool.query(`INSERT INTO memberships (team_id, user_id, role) VALUES ($1, $2, 'viewer')`, [t.id, m.userId])
+  return m.userId
 }
 
 /** Team A: a token of A's designer; team B: a token of B's lead (each team's "own" token holder). */
@@ -298,11 +308,14 @@ const REQUESTS: Record<string, Build> = {
   'PATCH /api/shortlist/:id': (t) => ({ method: 'PATCH', path: `/api/shortlist/${t.entryId}`, json: { note: unique('note') } }),
   'DELETE /api/shortlist/:id': async (t) => ({ method: 'DELETE', path: `/api/shortlist/${await freshEntry(t)}` }),
   'POST /api/shortlist/:id/comments': (t) => post(`/api/shortlist/${t.entryId}/comments`, { body: 'Looks good' }),
-  'POST /api/shortlist/:id/choose': async (t) => post(`/api/shortlist/${await freshEntry(t)}/choose`, { reason: 'Best enhancement' }),
+  // Other cells leave a chosen entry behind, so the move is confirmed (replaceChosen) to test the role alone.
+  'POST /api/shortlist/:id/choose': async (t) => post(`/api/shortlist/${await freshEntry(t)}/choose`, { reason: 'Best enhancement', replaceChosen: true }),
   'POST /api/shortlist/:id/unchoose': async (t) => post(`/api/shortlist/${await freshEntry(t, true)}/unchoose`),
 
   'GET /api/teams/:id/members': (t) => get(`/api/teams/${t.id}/members`),
   'GET /api/teams/:id/invitations': (t) => get(`/api/teams/${t.id}/invitations`),
+  'PATCH /api/teams/:id/members/:userId': async (t) => ({ method: 'PATCH', path: `/api/teams/${t.id}/members/${await freshMember(t)}`, json: { role: 'designer' } }),
+  'DELETE /api/teams/:id/members/:userId': async (t) => ({ method: 'DELETE', path: `/api/teams/${t.id}/members/${await freshMember(t)}` }),
   'POST /api/teams/:id/invitations': (t) => post(`/api/teams/${t.id}/invitations`, { email: uniqueEmail('invitee'), role: 'designer' }),
   'DELETE /api/invitations/:id': async (t) => ({ method: 'DELETE', path: `/api/invitations/${await freshInvitation(t)}` }),
 }
@@ -426,7 +439,9 @@ describe('authorization matrix', () => {
     const byToken = await rawFetch('GET', '/api/projects', { authorization: `Bearer ${apiToken}` })
     expect(byToken.body.projects.map((p: { id: string }) => p.id)).not.toContain(B.projectId)
     const members = (await accounts.viewer.client.get(`/api/teams/${A.id}/members`)).body.members.map((m: { email: string }) => m.email)
-    expect(members.sort()).toEqual([accounts.lead.email, accounts.designer.email, accounts.viewer.email].sort())
+    // Members the team-route cells joined to team A (authz-member.*) are A's own; none of team B shows.
+    expect(members.filter((e: string) => !e.startsWith('authz-member.')).sort()).toEqual([accounts.lead.email, accounts.designer.email, accounts.viewer.email].sort())
+    expect(members).not.toContain(accounts.outsider.email)
     const runs = (await accounts.lead.client.get(`/api/runs?projectId=${A.projectId}`)).body.runs.map((r: { id: string }) => r.id)
     expect(runs).toContain(A.runId)
     expect(runs).not.toContain(B.runId)

@@ -92,8 +92,20 @@ describe('shortlist', () => {
     expect(list.entries[0].figure.stdErr).toBeGreaterThan(0)
     expect(list.entries[0].geometry.sagUm).toBe(5)
 
-    expect((await demo.lead.post(`/api/shortlist/${entryA}/choose`, { reason: 'Embossing trial favours the lower sag' })).status).toBe(200)
+    // Another entry holds the mark: moving it is refused until the lead confirms, and the answer names the choice.
+    const unconfirmed = await demo.lead.post(`/api/shortlist/${entryA}/choose`, { reason: 'Embossing trial favours the lower sag' })
+    expect(unconfirmed.status).toBe(409)
+    expect(unconfirmed.body.message).toMatch(/ · cell 1 · .* is the chosen candidate now\. Confirm moving the mark to .* · cell 0 · /)
+    expect((await demo.viewer.get(`/api/projects/${demoProjectId}/shortlist`)).body.entries[0].id).toBe(entryB)
+    expect((await demo.lead.post(`/api/shortlist/${entryA}/choose`, { reason: 'Embossing trial favours the lower sag', replaceChosen: true })).status).toBe(200)
     list = (await demo.viewer.get(`/api/projects/${demoProjectId}/shortlist`)).body
+    // The history says which entry: the new choice names the one it replaced, and the old one names its successor.
+    const chosenEv = list.history.find((h: { action: string; entryId: string }) => h.action === 'chosen' && h.entryId === entryA)
+    expect(chosenEv.detail.entry).toMatch(/ · cell 0 · /)
+    expect(chosenEv.detail.previousLabel).toMatch(/ · cell 1 · /)
+    const unchosenEv = list.history.find((h: { action: string; entryId: string }) => h.action === 'unchosen' && h.entryId === entryB)
+    expect(unchosenEv.detail).toMatchObject({ replacedBy: entryA })
+    expect(unchosenEv.detail.entry).toMatch(/ · cell 1 · /)
     expect(list.entries.filter((e: { chosen: boolean }) => e.chosen).map((e: { id: string }) => e.id)).toEqual([entryA])
     expect(list.entries[0].id).toBe(entryA)
     const actions = list.history.filter((h: { entryId: string }) => [entryA, entryB].includes(h.entryId)).map((h: { action: string; actor: string }) => `${h.action}:${h.actor}`)

@@ -11,11 +11,14 @@ import { createDatabase, freePort, migrateDatabase, repoRoot } from '../../scrip
 import { waitForHttp } from '../../scripts/run'
 import { dbFromPool } from '../../server/utils/db'
 import { loadDemoData } from '../../server/utils/demo'
+import { startFakeSmtp } from '../../scripts/fake-smtp'
 
 declare module 'vitest' {
   export interface ProvidedContext {
     e2eBaseUrl: string
     e2eProjectId: string
+    /** The e2e database, for tests that read the fake SMTP's mailbox_messages (invitation links). */
+    e2eDatabaseUrl: string
   }
 }
 
@@ -32,6 +35,8 @@ export default async function setup(project: TestProject) {
   const { projectId } = await loadDemoData(dbFromPool(pool))
   await pool.end()
 
+  // Invitations send mail: the fake SMTP server stores it in the e2e database's mailbox_messages.
+  const mailbox = await startFakeSmtp(databaseUrl)
   const port = await freePort()
   const outDir = join(repoRoot, 'test-output', 'e2e')
   mkdirSync(outDir, { recursive: true })
@@ -40,7 +45,8 @@ export default async function setup(project: TestProject) {
   const server = spawn(process.execPath, [entry], {
     cwd: repoRoot,
     env: {
-      ...process.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production',
+      ...process.env, ...mailbox.env, DATABASE_URL: databaseUrl, HOST: '127.0.0.1', PORT: String(port), NODE_ENV: 'production',
+      LENSFIELD_PUBLIC_URL: `http://127.0.0.1:${port}`,
       // the embedded worker stays on (LENSFIELD_EMBEDDED_WORKER unset); small batches so progress moves visibly
       LENSFIELD_BATCH_RAYS: '10000',
       LENSFIELD_QUEUE_MAINTENANCE_SECONDS: '1',
@@ -58,6 +64,7 @@ export default async function setup(project: TestProject) {
   }
   project.provide('e2eBaseUrl', baseUrl)
   project.provide('e2eProjectId', projectId)
+  project.provide('e2eDatabaseUrl', databaseUrl)
 
   return async () => {
     if (server.exitCode === null) {
@@ -66,6 +73,7 @@ export default async function setup(project: TestProject) {
       await Promise.race([exited, new Promise((r) => setTimeout(r, 5000))])
       if (server.exitCode === null) server.kill('SIGKILL')
     }
+    await mailbox.close()
     // on a shared server (DATABASE_URL given to npm test) leave nothing behind
     const admin = new pg.Client({ connectionString: adminUrl })
     await admin.connect()
