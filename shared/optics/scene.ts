@@ -24,7 +24,7 @@ export const S_PROFILE = 14 // 0 isotropic, 1 lambertian, 2 table
 export const S_SOURCE = 15 // 0 extended, 1 disc, 2 rectangle
 export const S_SOURCE_A_UM = 16 // disc radius or rectangle width
 export const S_SOURCE_B_UM = 17 // rectangle height
-export const S_FRESNEL = 18 // 0 averaged, 1 none
+export const S_FRESNEL = 18 // 0 averaged, 1 none, 2 polarized
 export const S_MAX_EVENTS = 19
 /** Measured cap profile (shape "measured"): knot count (0 for quadric caps) and offset of [u…, w…, m…]. */
 export const S_MEASURED_KNOTS = 20
@@ -43,6 +43,7 @@ export const SOURCE_DISC = 1
 export const SOURCE_RECTANGLE = 2
 export const FRESNEL_AVERAGED = 0
 export const FRESNEL_NONE = 1
+export const FRESNEL_POLARIZED = 2
 
 export type PackedScene = Float64Array
 
@@ -84,7 +85,7 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   if (src.shape === 'extended') s[S_SOURCE] = SOURCE_EXTENDED
   else if (src.shape === 'disc') { s[S_SOURCE] = SOURCE_DISC; s[S_SOURCE_A_UM] = src.radiusUm }
   else { s[S_SOURCE] = SOURCE_RECTANGLE; s[S_SOURCE_A_UM] = src.widthUm; s[S_SOURCE_B_UM] = src.heightUm }
-  s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : FRESNEL_AVERAGED
+  s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : sc.trace.fresnel === 'polarized' ? FRESNEL_POLARIZED : FRESNEL_AVERAGED
   s[S_MAX_EVENTS] = sc.trace.maxEvents
   if (measured) {
     const n = measured.u.length, at = S_HEADER + tableLen

@@ -5,14 +5,14 @@
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
 // top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts.
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing } from './crossings'
+import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, metalReflect, randomPolarization } from './crossings'
 import { capHit, capNormal } from './geometry'
 import { HEX_ROW_FACTOR, sampleCell, wrapToSite } from './lattice'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { draw, MEDIUM_AIR, MEDIUM_EMITTER, MEDIUM_LENS, MEDIUM_SUBSTRATE, RAY_ENDED, type Ray } from './ray'
 import { sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
-  FRESNEL_NONE, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
+  FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
   S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS,
   S_N_EMITTER, S_N_LENS, S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM,
   S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
@@ -30,6 +30,8 @@ export interface Stack {
   measured: boolean
   profile: number; source: number; sourceAUm: number; sourceBUm: number
   fresnel: boolean
+  /** Fresnel mode "polarized": the ray's field is tracked (ray.pol). */
+  polarized: boolean
   maxEvents: number
 }
 
@@ -52,6 +54,7 @@ export function stackOf(scene: PackedScene): Stack {
     measured: measured !== null,
     profile: scene[S_PROFILE]!, source: scene[S_SOURCE]!, sourceAUm: scene[S_SOURCE_A_UM]!, sourceBUm: scene[S_SOURCE_B_UM]!,
     fresnel: scene[S_FRESNEL]! !== FRESNEL_NONE,
+    polarized: scene[S_FRESNEL]! === FRESNEL_POLARIZED,
     maxEvents: scene[S_MAX_EVENTS]!,
   }
 }
@@ -113,6 +116,7 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   else if (st.profile === PROFILE_LAMBERTIAN) sampleLambertian(draw(ray), draw(ray), v3)
   else sampleTabulated(st.scene, S_TABLE, draw(ray), draw(ray), draw(ray), v3)
   ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+  if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // unpolarised: a random linear state
   ray.medium = MEDIUM_EMITTER
   at(ray, rec)
 }
@@ -129,10 +133,14 @@ export function emitterStep(ray: Ray, st: Stack): number {
     if (st.diffuseFraction > 0 && draw(ray) < st.diffuseFraction) {
       sampleLambertian(draw(ray), draw(ray), v3)
       ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
-    } else ray.dz = -ray.dz
+      if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // diffuse re-emission depolarises
+    } else {
+      if (st.polarized) metalReflect(ray.pol, ray.dx, ray.dy, ray.dz) // ideal metal: rs = −1, rp = +1
+      ray.dz = -ray.dz
+    }
     return MEDIUM_EMITTER
   }
-  const c = flatCrossing(ray, true, st.nEmitter, st.nSubstrate, st.fresnel && st.nEmitter !== st.nSubstrate)
+  const c = flatCrossing(ray, true, st.nEmitter, st.nSubstrate, st.fresnel && st.nEmitter !== st.nSubstrate, st.polarized)
   if (c === CROSS_TIR) return end(ray, T_WAVEGUIDED)
   if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_EMITTER }
   return MEDIUM_SUBSTRATE
@@ -153,7 +161,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.z = 0
     ray.x += ray.dx * pathUm; ray.y += ray.dy * pathUm
     at(ray, rec)
-    const c = flatCrossing(ray, false, st.nSubstrate, st.nEmitter, st.fresnel && st.nEmitter !== st.nSubstrate)
+    const c = flatCrossing(ray, false, st.nSubstrate, st.nEmitter, st.fresnel && st.nEmitter !== st.nSubstrate, st.polarized)
     if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
     if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
     return MEDIUM_EMITTER
@@ -167,7 +175,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.x -= sx; ray.y -= sy; ray.ox += sx; ray.oy += sy
     if (ray.x * ray.x + ray.y * ray.y < st.lensRadiusUm * st.lensRadiusUm) {
       if (st.nLens !== st.nSubstrate) {
-        const c = flatCrossing(ray, true, st.nSubstrate, st.nLens, st.fresnel)
+        const c = flatCrossing(ray, true, st.nSubstrate, st.nLens, st.fresnel, st.polarized)
         if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
         if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
       }
@@ -175,7 +183,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
       return MEDIUM_LENS
     }
   }
-  const c = flatCrossing(ray, true, st.nSubstrate, 1, st.fresnel)
+  const c = flatCrossing(ray, true, st.nSubstrate, 1, st.fresnel, st.polarized)
   if (c === CROSS_TIR) {
     if (!st.hasLens && (st.diffuseFraction === 0 || st.reflectance === 0)) return end(ray, T_TRAPPED)
     ray.dz = -ray.dz; ray.bounces++
@@ -203,7 +211,7 @@ export function lensStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.x += ray.dx * tS; ray.y += ray.dy * tS; ray.z += ray.dz * tS
     at(ray, rec)
     capNormalAt(ray, st, v3)
-    const c = curvedCrossing(ray, v3[0]!, v3[1]!, v3[2]!, st.nLens, 1, st.fresnel)
+    const c = curvedCrossing(ray, v3[0]!, v3[1]!, v3[2]!, st.nLens, 1, st.fresnel, st.polarized)
     if (c !== CROSS_TRANSMIT) { ray.onCap = true; ray.bounces++; return MEDIUM_LENS }
     ray.excludeSelf = true
     return MEDIUM_AIR
@@ -213,7 +221,7 @@ export function lensStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   ray.x += ray.dx * tB; ray.y += ray.dy * tB; ray.z = tUm
   at(ray, rec)
   if (st.nLens !== st.nSubstrate) {
-    const c = flatCrossing(ray, false, st.nLens, st.nSubstrate, st.fresnel)
+    const c = flatCrossing(ray, false, st.nLens, st.nSubstrate, st.fresnel, st.polarized)
     if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
     if (c !== CROSS_TRANSMIT) { ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
   }
@@ -236,7 +244,7 @@ export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.z = st.thicknessUm
     at(ray, rec)
     ray.bounces++ // back into the film from air, whatever happens next
-    const c = flatCrossing(ray, false, 1, st.nSubstrate, st.fresnel)
+    const c = flatCrossing(ray, false, 1, st.nSubstrate, st.fresnel, st.polarized)
     if (c !== CROSS_TRANSMIT) { ray.excludeSelf = false; return MEDIUM_AIR }
     return MEDIUM_SUBSTRATE
   }
@@ -246,7 +254,7 @@ export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   ray.bounces++
   capNormalAt(ray, st, v3)
   // the normal on the lens side (into the far medium) is the inward one
-  const c = curvedCrossing(ray, -v3[0]!, -v3[1]!, -v3[2]!, 1, st.nLens, st.fresnel)
+  const c = curvedCrossing(ray, -v3[0]!, -v3[1]!, -v3[2]!, 1, st.nLens, st.fresnel, st.polarized)
   if (c !== CROSS_TRANSMIT) { ray.excludeSelf = true; return MEDIUM_AIR } // a convex cap cannot be met twice by a straight ray
   ray.onCap = true
   return MEDIUM_LENS

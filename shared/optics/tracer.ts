@@ -16,12 +16,12 @@ import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHitTo, HEX_ROW_FACTOR } from './geometry'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { fresnelReflects } from './crossings'
+import { fresnelReflects, metalReflect, polarizedReflects, polarizedTir, randomPolarization } from './crossings'
 import { wrapToSite } from './lattice'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
-  FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
+  FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
   S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
   S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
@@ -51,6 +51,8 @@ const ubuf = new Float64Array(UB)
 const v3 = new Float64Array(3)
 // Scratch: capHitTo writes τ into hit[0], wrapToSite the site into hit[1], hit[2].
 const hit = new Float64Array(3)
+// The ray's field in Fresnel mode "polarized" (crossings.ts: [xRe, xIm, yRe, yIm, zRe, zIm]).
+const pol = new Float64Array(6)
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
@@ -75,6 +77,7 @@ export function traceRange(
   const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
   const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
+  const polar = scene[S_FRESNEL]! === FRESNEL_POLARIZED
   const maxEvents = scene[S_MAX_EVENTS]!
   const specular = fd === 0 || rb === 0
   // Lateral positions matter with a lens array (which cap) and for a finite pixel (the footprint tally).
@@ -99,6 +102,7 @@ export function traceRange(
     else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
+    if (polar) randomPolarization(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz)
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
     let events = 0
@@ -114,7 +118,11 @@ export function traceRange(
             if (fd > 0 && (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)) < fd) {
               sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
               dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
-            } else dz = -dz
+              if (polar) randomPolarization(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz)
+            } else {
+              if (polar) metalReflect(pol, dx, dy, dz)
+              dz = -dz
+            }
             break
           }
           // emitter → substrate, normal +z, cosI = dz
@@ -122,7 +130,7 @@ export function traceRange(
           const sin2T = eta * eta * (1 - dz * dz)
           if (sin2T >= 1) { end = T_WAVEGUIDED; break }
           const cosT = Math.sqrt(1 - sin2T)
-          if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nE, nS)) { dz = -dz; break }
+          if (!noFresnel && nE !== nS && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, 1, dz, cosT, nE, nS) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nE, nS))) { dz = -dz; break }
           dx *= eta; dy *= eta; dz = cosT
           med = MED_SUBSTRATE
           break
@@ -138,9 +146,9 @@ export function traceRange(
             const cosI = -dz
             const eta = nS / nE
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1) { dz = cosI; break }
+            if (sin2T >= 1) { if (polar) polarizedTir(pol, dx, dy, dz, 0, 0, -1, cosI, sin2T, nS, nE); dz = cosI; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nS, nE)) { dz = cosI; break }
+            if (!noFresnel && nE !== nS && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, -1, cosI, cosT, nS, nE) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nS, nE))) { dz = cosI; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_EMITTER
             break
@@ -157,9 +165,9 @@ export function traceRange(
               if (nL !== nS) {
                 const eta = nS / nL
                 const sin2T = eta * eta * (1 - dz * dz)
-                if (sin2T >= 1) { dz = -dz; break }
+                if (sin2T >= 1) { if (polar) polarizedTir(pol, dx, dy, dz, 0, 0, 1, dz, sin2T, nS, nL); dz = -dz; break }
                 const cosT = Math.sqrt(1 - sin2T)
-                if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, nL)) { dz = -dz; break }
+                if (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, 1, dz, cosT, nS, nL) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, nL))) { dz = -dz; break }
                 dx *= eta; dy *= eta; dz = cosT
               }
               med = MED_LENS
@@ -173,11 +181,12 @@ export function traceRange(
             const sin2T = eta * eta * (1 - dz * dz)
             if (sin2T >= 1) {
               if (!hasLens && specular) { end = T_TRAPPED; break }
+              if (polar) polarizedTir(pol, dx, dy, dz, 0, 0, 1, dz, sin2T, nS, 1)
               dz = -dz
               break
             }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, 1)) { dz = -dz; break }
+            if (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, 1, dz, cosT, nS, 1) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, 1))) { dz = -dz; break }
             dx *= eta; dy *= eta; dz = cosT
             if (!hasLens) { end = T_EXTRACTED; break }
             med = MED_AIR
@@ -201,7 +210,9 @@ export function traceRange(
             const cosI = dx * nx + dy * ny + dz * nz
             const eta = nL
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1 || (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nL, 1))) {
+            if (sin2T >= 1
+              ? (!polar || polarizedTir(pol, dx, dy, dz, nx, ny, nz, cosI, sin2T, nL, 1))
+              : (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, nx, ny, nz, cosI, Math.sqrt(1 - sin2T), nL, 1) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nL, 1)))) {
               dx -= 2 * cosI * nx; dy -= 2 * cosI * ny; dz -= 2 * cosI * nz
               onCap = true
               break
@@ -220,9 +231,9 @@ export function traceRange(
             const cosI = -dz
             const eta = nL / nS
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1) { dz = cosI; onCap = false; break }
+            if (sin2T >= 1) { if (polar) polarizedTir(pol, dx, dy, dz, 0, 0, -1, cosI, sin2T, nL, nS); dz = cosI; onCap = false; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nL, nS)) { dz = cosI; onCap = false; break }
+            if (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, -1, cosI, cosT, nL, nS) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nL, nS))) { dz = cosI; onCap = false; break }
             dx *= eta; dy *= eta; dz = -cosT
           }
           med = MED_SUBSTRATE
@@ -240,7 +251,7 @@ export function traceRange(
             const cosI = -dz
             const eta = 1 / nS
             const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nS)) { dz = cosI; excludeSelf = false; break }
+            if (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, 0, 0, -1, cosI, cosT, 1, nS) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nS))) { dz = cosI; excludeSelf = false; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_SUBSTRATE
             break
@@ -254,7 +265,7 @@ export function traceRange(
           const cosI = -(dx * nx + dy * ny + dz * nz)
           const eta = 1 / nL
           const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-          if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nL)) {
+          if (!noFresnel && (polar ? polarizedReflects(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz, -nx, -ny, -nz, cosI, cosT, 1, nL) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nL))) {
             dx += 2 * cosI * nx; dy += 2 * cosI * ny; dz += 2 * cosI * nz
             excludeSelf = true // a convex cap cannot be met twice by a straight ray
             break

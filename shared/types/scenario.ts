@@ -123,12 +123,16 @@ export const lensArraySchema = z
     }
   })
 
-export const fresnelModeSchema = z.enum(['averaged', 'none'])
+export const fresnelModeSchema = z.enum(['averaged', 'none', 'polarized'])
 
 export const traceSchema = z.object({
   rays: z.number().int().min(1).max(1e10).default(1_000_000),
   seed: z.number().int().min(0).max(0xffffffff).default(1),
-  /** "averaged": reflect with probability (Rs+Rp)/2 (reference). "none": transmit unless TIR (test extension). */
+  /**
+   * "averaged": reflect with probability (Rs+Rp)/2 (reference). "polarized": each ray carries its field and reflects
+   * with |rs|²|Es|² + |rp|²|Ep|². "none": transmit unless TIR (test extension). The schema default stays
+   * "averaged" so stored designs that omit the field keep their results; new designs are created "polarized".
+   */
   fresnel: fresnelModeSchema.default('averaged'),
   /** Interface and reflector encounters after which a ray is counted as unresolved. */
   maxEvents: z.number().int().min(1).max(1e7).default(10_000),
