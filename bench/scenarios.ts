@@ -10,7 +10,10 @@ const stack = {
 export const benchScenarios: Record<string, ScenarioInput> = {
   // The example: close-packed hexagonal hemispheres (target ≥ 600 000 rays/s on one thread).
   'hex-hemisphere-close-packed': { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 } },
+  // The same film with polarisation-tracked Fresnel (compare with the line above: same run, same machine).
+  'hex-hemisphere-close-packed-polarized': { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 }, trace: { fresnel: 'polarized' } },
   'planar': { ...stack, lensArray: null },
+  'planar-polarized': { ...stack, lensArray: null, trace: { fresnel: 'polarized' } },
   'square-parabolic-absorbing': {
     ...stack,
     substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0.5 },
