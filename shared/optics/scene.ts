@@ -1,7 +1,8 @@
 // Packs a validated scenario into the flat numeric scene the tracer reads (Float64Array, fixed slots, integer
 // tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
 // A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
-import type { Scenario } from '../types/scenario'
+import { DEFAULT_WAVELENGTH_NM, extinctionAt, indexAt, type IndexModel, type Scenario } from '../types/scenario'
+import { buildSpectralBlock, SPECTRAL_BLOCK_LENGTH } from './spectral'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
@@ -29,6 +30,10 @@ export const S_MAX_EVENTS = 19
 /** Measured cap profile (shape "measured"): knot count (0 for quadric caps) and offset of [u…, w…, m…]. */
 export const S_MEASURED_KNOTS = 20
 export const S_MEASURED_OFFSET = 21
+/** Offset of the spectral block (spectral.ts) when the emitter has a spectrum, else 0. */
+export const S_SPECTRAL_OFFSET = 22
+/** Lens material absorption (1/µm): the substrate's plus 4πk/λ of a tabulated lens index. */
+export const S_LENS_ABSORPTION_PER_UM = 23
 export const S_HEADER = 24
 /** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
 export const S_TABLE = S_HEADER
@@ -53,12 +58,20 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   const tableLen = typeof prof === 'object' ? 2 * (PROFILE_GRID + 1) : 0
   const lens = opts.planar ? null : sc.lensArray
   const measured = lens && lens.shape === 'measured' && lens.profile ? buildProfile(lens.profile) : null
-  const s = new Float64Array(S_HEADER + tableLen + (measured ? 3 * measured.u.length : 0))
+  const spectral = sc.emitter.spectrum !== undefined
+  const measuredLen = measured ? 3 * measured.u.length : 0
+  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0))
+  // Indices at the monochromatic wavelength (a spectrum replaces them ray by ray from the spectral block)
+  const lam = DEFAULT_WAVELENGTH_NM
+  const lensIndex: IndexModel = sc.lensArray?.index ?? sc.substrate.index
+  const base = sc.substrate.absorptionPerMm / 1000
+  const kAbs = (m: IndexModel) => (4 * Math.PI * extinctionAt(m, lam)) / (lam / 1000)
   s[S_HAS_LENS] = lens ? 1 : 0
-  s[S_N_EMITTER] = sc.emitter.index
-  s[S_N_SUBSTRATE] = sc.substrate.index
+  s[S_N_EMITTER] = indexAt(sc.emitter.index, lam)
+  s[S_N_SUBSTRATE] = indexAt(sc.substrate.index, lam)
   s[S_THICKNESS_UM] = sc.substrate.thicknessUm
-  s[S_ABSORPTION_PER_UM] = sc.substrate.absorptionPerMm / 1000
+  s[S_ABSORPTION_PER_UM] = base + kAbs(sc.substrate.index)
+  s[S_LENS_ABSORPTION_PER_UM] = base + kAbs(lensIndex)
   s[S_REFLECTANCE] = sc.reflector.reflectance
   s[S_DIFFUSE_FRACTION] = sc.reflector.diffuseFraction
   const geo = sc.lensArray // the lattice still defines the launch cell of an extended source in the planar twin
@@ -67,13 +80,14 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   if (lens) {
     // A measured cap ignores c and k1 (measured-cap.ts); they are the sphere's so nothing reads NaN.
     const k = lens.shape === 'measured' ? 0 : shapeConicConstant(lens.shape, lens.conicConstant)
-    s[S_N_LENS] = lens.index ?? sc.substrate.index
+    s[S_N_LENS] = indexAt(lensIndex, lam)
     s[S_LENS_RADIUS_UM] = lens.diameterUm / 2
     s[S_SAG_UM] = lens.sagUm
     s[S_CURVATURE_PER_UM] = conicCurvaturePerUm(lens.diameterUm, lens.sagUm, k)
     s[S_K1] = 1 + k
   } else {
-    s[S_N_LENS] = sc.substrate.index
+    s[S_N_LENS] = s[S_N_SUBSTRATE]!
+    s[S_LENS_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! // no lens: nothing reads it
   }
   if (prof === 'isotropic') s[S_PROFILE] = PROFILE_ISOTROPIC
   else if (prof === 'lambertian') s[S_PROFILE] = PROFILE_LAMBERTIAN
@@ -93,6 +107,11 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
     s[S_MEASURED_OFFSET] = at
     s.set(measured.u, at); s.set(measured.w, at + n); s.set(measured.m, at + 2 * n)
   }
+  if (spectral) {
+    const at = S_HEADER + tableLen + measuredLen
+    s[S_SPECTRAL_OFFSET] = at
+    s.set(buildSpectralBlock(sc, lensIndex), at)
+  }
   return s
 }
 
@@ -109,6 +128,7 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   const s = scene.slice()
   s[S_THICKNESS_UM] = s[S_THICKNESS_UM]! * factor
   s[S_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! / factor
+  s[S_LENS_ABSORPTION_PER_UM] = s[S_LENS_ABSORPTION_PER_UM]! / factor
   s[S_PITCH_UM] = s[S_PITCH_UM]! * factor
   s[S_LENS_RADIUS_UM] = s[S_LENS_RADIUS_UM]! * factor
   s[S_SAG_UM] = s[S_SAG_UM]! * factor

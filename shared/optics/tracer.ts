@@ -18,12 +18,13 @@ import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-ca
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
 import { fresnelReflects, metalReflect, polarizedReflects, polarizedTir, randomPolarization } from './crossings'
 import { wrapToSite } from './lattice'
+import { sampleWavelength, SP_AL, SP_AS, SP_NE, SP_NL, SP_NS, spectralValue } from './spectral'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
   FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
   S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
-  S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
+  S_N_SUBSTRATE, S_LENS_ABSORPTION_PER_UM, S_SPECTRAL_OFFSET, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
@@ -53,6 +54,7 @@ const v3 = new Float64Array(3)
 const hit = new Float64Array(3)
 // The ray's field in Fresnel mode "polarized" (crossings.ts: [xRe, xIm, yRe, yIm, zRe, zIm]).
 const pol = new Float64Array(6)
+const cell = new Float64Array(2)
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
@@ -63,8 +65,9 @@ export function traceRange(
   shouldStop?: () => boolean, streamId = 0,
 ): number {
   const hasLens = scene[S_HAS_LENS]! !== 0
-  const nE = scene[S_N_EMITTER]!, nS = scene[S_N_SUBSTRATE]!, nL = scene[S_N_LENS]!
-  const tUm = scene[S_THICKNESS_UM]!, alpha = scene[S_ABSORPTION_PER_UM]!
+  const nE0 = scene[S_N_EMITTER]!, nS0 = scene[S_N_SUBSTRATE]!, nL0 = scene[S_N_LENS]!
+  const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
+  const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -103,6 +106,15 @@ export function traceRange(
     else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
     if (polar) randomPolarization(pol, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dx, dy, dz)
+    let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
+    if (spAt > 0) {
+      // the ray's wavelength, and its indices and absorption there
+      sampleWavelength(scene, spAt, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cell)
+      const j = cell[0]!, f = cell[1]!
+      nE = spectralValue(scene, spAt, SP_NE, j, f); nS = spectralValue(scene, spAt, SP_NS, j, f)
+      nL = spectralValue(scene, spAt, SP_NL, j, f)
+      alpha = spectralValue(scene, spAt, SP_AS, j, f); alphaL = spectralValue(scene, spAt, SP_AL, j, f)
+    }
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
     let events = 0
@@ -200,7 +212,7 @@ export function traceRange(
           const tS = hit[0]!
           const tB = dz < 0 ? (tUm - z) / dz : Infinity
           if (tS > 0 && tS < tB) {
-            if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tS) { end = T_SUBSTRATE; break }
+            if (alphaL > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alphaL * tS) { end = T_SUBSTRATE; break }
             x += dx * tS; y += dy * tS; z += dz * tS
             // outward normal (see geometry.ts)
             let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
@@ -225,7 +237,7 @@ export function traceRange(
             break
           }
           if (tB === Infinity) { end = T_UNRESOLVED; break } // no exit found (numerically degenerate ray)
-          if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tB) { end = T_SUBSTRATE; break }
+          if (alphaL > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alphaL * tB) { end = T_SUBSTRATE; break }
           x += dx * tB; y += dy * tB; z = tUm
           if (nL !== nS) {
             const cosI = -dz
