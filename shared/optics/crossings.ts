@@ -152,7 +152,8 @@ function project(f: Float64Array, kx: number, ky: number, kz: number, nx: number
     if (kz < 0.9 && kz > -0.9) { sx = -ky; sy = kx; sz = 0 } else { sx = 0; sy = -kz; sz = ky }
     len = Math.sqrt(sx * sx + sy * sy + sz * sz)
   }
-  sx /= len; sy /= len; sz /= len
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
   const px = sy * kz - sz * ky, py = sz * kx - sx * kz, pz = sx * ky - sy * kx
   pj[0] = sx; pj[1] = sy; pj[2] = sz; pj[3] = px; pj[4] = py; pj[5] = pz
   pj[6] = f[0]! * sx + f[2]! * sy + f[4]! * sz; pj[7] = f[1]! * sx + f[3]! * sy + f[5]! * sz
@@ -160,16 +161,15 @@ function project(f: Float64Array, kx: number, ky: number, kz: number, nx: number
 }
 
 /**
- * Writes f = A·s + B·(s × q) renormalised, with A = (aRe, aIm), B = (bRe, bIm) and q the outgoing wave's direction
- * (s from pj).
+ * Writes f = (A·s + B·(s × q))/√(|A|² + |B|²), with A = (aRe, aIm), B = (bRe, bIm) and q the outgoing wave's unit
+ * direction (s from pj).
  */
 function compose(f: Float64Array, aRe: number, aIm: number, bRe: number, bIm: number, qx: number, qy: number, qz: number): void {
   const sx = pj[0]!, sy = pj[1]!, sz = pj[2]!
-  let px = sy * qz - sz * qy, py = sz * qx - sx * qz, pz = sx * qy - sy * qx
-  const pl = Math.sqrt(px * px + py * py + pz * pz)
-  px /= pl; py /= pl; pz /= pl
-  const m = Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
-  aRe /= m; aIm /= m; bRe /= m; bIm /= m
+  // s ⊥ q, both unit: p = s × q is unit to rounding (no renormalisation of p needed)
+  const px = sy * qz - sz * qy, py = sz * qx - sx * qz, pz = sx * qy - sy * qx
+  const im = 1 / Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
+  aRe *= im; aIm *= im; bRe *= im; bIm *= im
   f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
   f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
   f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
@@ -192,11 +192,26 @@ export function polarizedReflectance(f: Float64Array, kx: number, ky: number, kz
  */
 export function polarizedReflects(f: Float64Array, u: number, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
   cosI: number, cosT: number, n1: number, n2: number): boolean {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[3] = nx; pin[4] = ny; pin[5] = nz
+  pin[6] = cosI; pin[7] = cosT; pin[8] = n1; pin[9] = n2; pin[10] = u
+  return polarizedReflectsIn(f)
+}
+
+/**
+ * Inputs of the polarised crossings for callers that avoid passing doubles (V8 boxes a double argument of a call
+ * it does not inline): [kx, ky, kz, nx, ny, nz, cosI, cosT (TIR: sin²θT), n1, n2, u].
+ */
+export const pin = new Float64Array(11)
+
+/** polarizedReflects with its inputs in pin. */
+export function polarizedReflectsIn(f: Float64Array): boolean {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
+  const cosI = pin[6]!, cosT = pin[7]!, n1 = pin[8]!, n2 = pin[9]!
   project(f, kx, ky, kz, nx, ny, nz)
   const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
   const rs = (a - b) / (a + b), rp = (c - d) / (c + d)
   const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
-  if (u < rs * rs * (esRe * esRe + esIm * esIm) + rp * rp * (epRe * epRe + epIm * epIm)) {
+  if (pin[10]! < rs * rs * (esRe * esRe + esIm * esIm) + rp * rp * (epRe * epRe + epIm * epIm)) {
     const g = 2 * cosI
     compose(f, rs * esRe, rs * esIm, rp * epRe, rp * epIm, kx - g * nx, ky - g * ny, kz - g * nz)
     return true
@@ -213,8 +228,17 @@ export function polarizedReflects(f: Float64Array, u: number, kx: number, ky: nu
  */
 export function polarizedTir(f: Float64Array, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
   cosI: number, sin2T: number, n1: number, n2: number): boolean {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[3] = nx; pin[4] = ny; pin[5] = nz
+  pin[6] = cosI; pin[7] = sin2T; pin[8] = n1; pin[9] = n2
+  return polarizedTirIn(f)
+}
+
+/** polarizedTir with its inputs in pin (pin[7] = sin²θT). */
+export function polarizedTirIn(f: Float64Array): boolean {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
+  const cosI = pin[6]!, n1 = pin[8]!, n2 = pin[9]!
   project(f, kx, ky, kz, nx, ny, nz)
-  const kap = Math.sqrt(sin2T - 1)
+  const kap = Math.sqrt(pin[7]! - 1)
   const a = n1 * cosI, b = n2 * kap, c = n2 * cosI, d = n1 * kap
   const ms = a * a + b * b, mp = c * c + d * d
   const rsRe = (a * a - b * b) / ms, rsIm = (-2 * a * b) / ms
@@ -228,15 +252,28 @@ export function polarizedTir(f: Float64Array, kx: number, ky: number, kz: number
 
 /** The back reflector as an ideal metal, normal −z (rs = −1, rp = +1): f becomes the field after the mirror. */
 export function metalReflect(f: Float64Array, kx: number, ky: number, kz: number): void {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz
+  metalReflectIn(f)
+}
+
+/** metalReflect with k in pin[0..2]. */
+export function metalReflectIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
   project(f, kx, ky, kz, 0, 0, -1)
   compose(f, -pj[6]!, -pj[7]!, pj[8]!, pj[9]!, kx, ky, -kz)
 }
 
 /** A random linear polarisation for a ray along k: angle 2πu from the s direction of k against z (f real). */
 export function randomPolarization(f: Float64Array, u: number, kx: number, ky: number, kz: number): void {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[10] = u
+  randomPolarizationIn(f)
+}
+
+/** randomPolarization with k in pin[0..2] and u in pin[10]. */
+export function randomPolarizationIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
   f[0] = 0; f[1] = 0; f[2] = 0; f[3] = 0; f[4] = 0; f[5] = 0
   project(f, kx, ky, kz, 0, 0, 1)
-  const psi = 2 * Math.PI * u
-  const cs = Math.cos(psi), sn = Math.sin(psi)
-  compose(f, cs, 0, sn, 0, kx, ky, kz)
+  const psi = 2 * Math.PI * pin[10]!
+  compose(f, Math.cos(psi), 0, Math.sin(psi), 0, kx, ky, kz)
 }
