@@ -7,10 +7,23 @@ const stack = {
   substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
 }
 
+const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
+
 export const benchScenarios: Record<string, ScenarioInput> = {
   // The example: close-packed hexagonal hemispheres (target ≥ 600 000 rays/s on one thread).
   'hex-hemisphere-close-packed': { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 } },
+  // The same film with polarisation-tracked Fresnel (compare with the line above: same run, same machine).
+  'hex-hemisphere-close-packed-polarized': { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 }, trace: { fresnel: 'polarized' } },
+  // Polarised and spectral: Gaussian 530/60 nm, N-BK7 substrate and lens (Sellmeier, maker's datasheet).
+  'hex-hemisphere-close-packed-polarized-spectral': {
+    ...stack,
+    emitter: { ...stack.emitter, spectrum: { peakNm: 530, fwhmNm: 60 } },
+    substrate: { ...stack.substrate, index: bk7 },
+    lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: bk7 },
+    trace: { fresnel: 'polarized' },
+  },
   'planar': { ...stack, lensArray: null },
+  'planar-polarized': { ...stack, lensArray: null, trace: { fresnel: 'polarized' } },
   'square-parabolic-absorbing': {
     ...stack,
     substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0.5 },

@@ -51,7 +51,7 @@ function pct(v: number, e: number): string {
 function summaryText(r: TraceResult, threads: number, seconds: number): string {
   const L = r.losses, E = r.lossesStdErr
   const lines = [
-    `rays                 ${r.rays} (seed ${r.seed}, ${threads} thread${threads > 1 ? 's' : ''}, ${seconds.toFixed(1)} s)`,
+    `rays                 ${r.rays} (seed ${r.seed}, ${threads} thread${threads > 1 ? 's' : ''}, ${seconds.toFixed(1)} s)${r.fresnel ? `, Fresnel ${r.fresnel}` : ''}`,
     `extraction           ${pct(r.extraction, r.extractionStdErr)} of emitted flux`,
     `planar extraction    ${pct(r.planar.extraction, r.planar.extractionStdErr)} of emitted flux`,
     `enhancement          ${pm(r.enhancement, r.enhancementStdErr, 3)} × planar`,

@@ -3,7 +3,9 @@
 // arithmetic: the readable model (steps.ts) calls the crossings, the fused loop (tracer.ts) calls fresnelReflects
 // and repeats the crossings' vector algebra operation for operation (tests/unit/optics/model-equality.test.ts
 // proves it), and the closed forms at the end are the tested reference the UI and tests use (interfaces.ts
-// re-exports them). Fresnel mode "averaged" reflects with probability (Rs + Rp)/2, one uniform per decision.
+// re-exports them). Fresnel mode "averaged" reflects with probability (Rs + Rp)/2, one uniform per decision;
+// "polarized" (`polarized` argument) tracks the ray's field (ray.pol) and reflects with its own probability, also
+// one uniform per decision.
 // Angles in radians; cosI is the cosine between the ray and the normal on the incidence side (0 < cosI ≤ 1).
 import { draw, type Ray } from './ray'
 
@@ -25,17 +27,25 @@ export function fresnelReflects(u: number, cosI: number, cosT: number, n1: numbe
 }
 
 /**
- * A flat face (normal ±z) from index n1 to n2, met going up (`up`, cosI = dz) or down (cosI = −dz). TIR: returns CROSS_TIR, ray unchanged. With `fresnel`
+ * A flat face (normal ±z) from index n1 to n2, met going up (`up`, cosI = dz) or down (cosI = −dz). TIR: returns
+ * CROSS_TIR, direction unchanged (with `polarized` the field is already the totally reflected one: the caller
+ * mirrors the ray or ends it). With `fresnel`
  * a uniform is drawn and the ray may be reflected (dz → −dz, CROSS_REFLECT). Transmission scales the lateral
  * direction by η = n1/n2 and sets |dz| = cosT, keeping the sense of travel (CROSS_TRANSMIT).
  */
-export function flatCrossing(ray: Ray, up: boolean, n1: number, n2: number, fresnel: boolean): number {
+export function flatCrossing(ray: Ray, up: boolean, n1: number, n2: number, fresnel: boolean, polarized = false): number {
   const cosI = up ? ray.dz : -ray.dz
   const eta = n1 / n2
   const sin2T = eta * eta * (1 - cosI * cosI)
-  if (sin2T >= 1) return CROSS_TIR
+  const nz = up ? 1 : -1
+  if (sin2T >= 1) {
+    if (polarized) polarizedTir(ray.pol, ray.dx, ray.dy, ray.dz, 0, 0, nz, cosI, sin2T, n1, n2)
+    return CROSS_TIR
+  }
   const cosT = Math.sqrt(1 - sin2T)
-  if (fresnel && fresnelReflects(draw(ray), cosI, cosT, n1, n2)) { ray.dz = -ray.dz; return CROSS_REFLECT }
+  if (fresnel && (polarized
+    ? polarizedReflects(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz, 0, 0, nz, cosI, cosT, n1, n2)
+    : fresnelReflects(draw(ray), cosI, cosT, n1, n2))) { ray.dz = -ray.dz; return CROSS_REFLECT }
   ray.dx *= eta; ray.dy *= eta; ray.dz = up ? cosT : -cosT
   return CROSS_TRANSMIT
 }
@@ -46,12 +56,16 @@ export function flatCrossing(ray: Ray, up: boolean, n1: number, n2: number, fres
  * CROSS_TIR or CROSS_REFLECT; transmission refracts it, d' = η d + (cosT − η cosI) n with η = n1/n2 (vector Snell's
  * law), and returns CROSS_TRANSMIT.
  */
-export function curvedCrossing(ray: Ray, nx: number, ny: number, nz: number, n1: number, n2: number, fresnel: boolean): number {
+export function curvedCrossing(ray: Ray, nx: number, ny: number, nz: number, n1: number, n2: number, fresnel: boolean, polarized = false): number {
   const cosI = ray.dx * nx + ray.dy * ny + ray.dz * nz
   const eta = n1 / n2
   const sin2T = eta * eta * (1 - cosI * cosI)
   const tir = sin2T >= 1
-  if (tir || (fresnel && fresnelReflects(draw(ray), cosI, Math.sqrt(1 - sin2T), n1, n2))) {
+  if (tir
+    ? (!polarized || polarizedTir(ray.pol, ray.dx, ray.dy, ray.dz, nx, ny, nz, cosI, sin2T, n1, n2))
+    : (fresnel && (polarized
+      ? polarizedReflects(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz, nx, ny, nz, cosI, Math.sqrt(1 - sin2T), n1, n2)
+      : fresnelReflects(draw(ray), cosI, Math.sqrt(1 - sin2T), n1, n2)))) {
     ray.dx -= 2 * cosI * nx; ray.dy -= 2 * cosI * ny; ray.dz -= 2 * cosI * nz
     return tir ? CROSS_TIR : CROSS_REFLECT
   }
@@ -115,4 +129,151 @@ export function brewsterAngleRad(n1: number, n2: number): number {
 export function escapeConeFraction(nInside: number, nOutside = 1): number {
   const s = nOutside / nInside
   return s >= 1 ? 1 : 1 - Math.sqrt(1 - s * s)
+}
+
+// Polarisation-tracked Fresnel (mode "polarized"). The field is a complex unit 3-vector perpendicular to the
+// ray (a 3-D Jones vector) held in a Float64Array(6): [xRe, xIm, yRe, yIm, zRe, zIm]. At an interface with unit
+// normal n (into the far medium, cosI = k·n > 0): s = normalize(k × n) (any perpendicular when k ∥ n) and
+// p = s × k for each wave (incident, reflected, transmitted); amplitude coefficients as in fresnelReflects plus
+// ts = 2 n1 cosI/(n1 cosI + n2 cosT), tp = 2 n1 cosI/(n2 cosI + n1 cosT) (Hecht, Optics, ch. 4). With this
+// convention rp = −rs at normal incidence, so a normally reflected field is rs times the incident one in the lab
+// frame. Under TIR cosT = iκ, κ = √(sin²θT − 1): |rs| = |rp| = 1 and the phases are kept (the state turns
+// elliptical). No allocation: scratch below; the fused loop calls these with scalars.
+
+/** Scratch of the last projection: s (0–2), p of the incident wave (3–5), Es (6, 7), Ep (8, 9) as re/im. */
+const pj = new Float64Array(10)
+
+/** Fills pj for a field f on a ray k at a surface with normal n. */
+function project(f: Float64Array, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number): void {
+  let sx = ky * nz - kz * ny, sy = kz * nx - kx * nz, sz = kx * ny - ky * nx
+  let len = Math.sqrt(sx * sx + sy * sy + sz * sz)
+  if (len < 1e-12) {
+    // k ∥ n: every transverse direction is an s direction; take z × k, or x × k when k is near z
+    if (kz < 0.9 && kz > -0.9) { sx = -ky; sy = kx; sz = 0 } else { sx = 0; sy = -kz; sz = ky }
+    len = Math.sqrt(sx * sx + sy * sy + sz * sz)
+  }
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
+  const px = sy * kz - sz * ky, py = sz * kx - sx * kz, pz = sx * ky - sy * kx
+  pj[0] = sx; pj[1] = sy; pj[2] = sz; pj[3] = px; pj[4] = py; pj[5] = pz
+  pj[6] = f[0]! * sx + f[2]! * sy + f[4]! * sz; pj[7] = f[1]! * sx + f[3]! * sy + f[5]! * sz
+  pj[8] = f[0]! * px + f[2]! * py + f[4]! * pz; pj[9] = f[1]! * px + f[3]! * py + f[5]! * pz
+}
+
+/**
+ * Writes f = (A·s + B·(s × q))/√(|A|² + |B|²), with A = (aRe, aIm), B = (bRe, bIm) and q the outgoing wave's unit
+ * direction (s from pj).
+ */
+function compose(f: Float64Array, aRe: number, aIm: number, bRe: number, bIm: number, qx: number, qy: number, qz: number): void {
+  const sx = pj[0]!, sy = pj[1]!, sz = pj[2]!
+  // s ⊥ q, both unit: p = s × q is unit to rounding (no renormalisation of p needed)
+  const px = sy * qz - sz * qy, py = sz * qx - sx * qz, pz = sx * qy - sy * qx
+  const im = 1 / Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
+  aRe *= im; aIm *= im; bRe *= im; bIm *= im
+  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
+  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
+  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
+}
+
+/** Power reflectance |rs|²|Es|² + |rp|²|Ep|² of field f on ray k (no TIR; cosT ≥ 0). */
+export function polarizedReflectance(f: Float64Array, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
+  cosI: number, cosT: number, n1: number, n2: number): number {
+  project(f, kx, ky, kz, nx, ny, nz)
+  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
+  const rs = (a - b) / (a + b), rp = (c - d) / (c + d)
+  const es2 = pj[6]! * pj[6]! + pj[7]! * pj[7]!, ep2 = pj[8]! * pj[8]! + pj[9]! * pj[9]!
+  return rs * rs * es2 + rp * rp * ep2
+}
+
+/**
+ * Polarised Fresnel decision (no TIR): reflect when u < |rs|²|Es|² + |rp|²|Ep|²; f becomes the reflected field
+ * rs·Es·s + rp·Ep·p_r or the transmitted one ts·Es·s + tp·Ep·p_t, renormalised. The caller moves the ray (the
+ * same mirror d − 2(d·n)n or vector Snell's law the field was built for). Boolean return, as fresnelReflects.
+ */
+export function polarizedReflects(f: Float64Array, u: number, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
+  cosI: number, cosT: number, n1: number, n2: number): boolean {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[3] = nx; pin[4] = ny; pin[5] = nz
+  pin[6] = cosI; pin[7] = cosT; pin[8] = n1; pin[9] = n2; pin[10] = u
+  return polarizedReflectsIn(f)
+}
+
+/**
+ * Inputs of the polarised crossings for callers that avoid passing doubles (V8 boxes a double argument of a call
+ * it does not inline): [kx, ky, kz, nx, ny, nz, cosI, cosT (TIR: sin²θT), n1, n2, u].
+ */
+export const pin = new Float64Array(11)
+
+/** polarizedReflects with its inputs in pin. */
+export function polarizedReflectsIn(f: Float64Array): boolean {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
+  const cosI = pin[6]!, cosT = pin[7]!, n1 = pin[8]!, n2 = pin[9]!
+  project(f, kx, ky, kz, nx, ny, nz)
+  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
+  const rs = (a - b) / (a + b), rp = (c - d) / (c + d)
+  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
+  if (pin[10]! < rs * rs * (esRe * esRe + esIm * esIm) + rp * rp * (epRe * epRe + epIm * epIm)) {
+    const g = 2 * cosI
+    compose(f, rs * esRe, rs * esIm, rp * epRe, rp * epIm, kx - g * nx, ky - g * ny, kz - g * nz)
+    return true
+  }
+  const ts = (2 * a) / (a + b), tp = (2 * a) / (c + d)
+  const eta = n1 / n2, h = cosT - eta * cosI
+  compose(f, ts * esRe, ts * esIm, tp * epRe, tp * epIm, eta * kx + h * nx, eta * ky + h * ny, eta * kz + h * nz)
+  return false
+}
+
+/**
+ * Total internal reflection of field f (sin²θT = sin2T ≥ 1): rs = (a − ib)/(a + ib) with a = n1 cosI, b = n2 κ;
+ * rp = (a′ − ib′)/(a′ + ib′) with a′ = n2 cosI, b′ = n1 κ. Returns true (the ray is reflected; the caller mirrors it).
+ */
+export function polarizedTir(f: Float64Array, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
+  cosI: number, sin2T: number, n1: number, n2: number): boolean {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[3] = nx; pin[4] = ny; pin[5] = nz
+  pin[6] = cosI; pin[7] = sin2T; pin[8] = n1; pin[9] = n2
+  return polarizedTirIn(f)
+}
+
+/** polarizedTir with its inputs in pin (pin[7] = sin²θT). */
+export function polarizedTirIn(f: Float64Array): boolean {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
+  const cosI = pin[6]!, n1 = pin[8]!, n2 = pin[9]!
+  project(f, kx, ky, kz, nx, ny, nz)
+  const kap = Math.sqrt(pin[7]! - 1)
+  const a = n1 * cosI, b = n2 * kap, c = n2 * cosI, d = n1 * kap
+  const ms = a * a + b * b, mp = c * c + d * d
+  const rsRe = (a * a - b * b) / ms, rsIm = (-2 * a * b) / ms
+  const rpRe = (c * c - d * d) / mp, rpIm = (-2 * c * d) / mp
+  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
+  const g = 2 * cosI
+  compose(f, rsRe * esRe - rsIm * esIm, rsRe * esIm + rsIm * esRe, rpRe * epRe - rpIm * epIm, rpRe * epIm + rpIm * epRe,
+    kx - g * nx, ky - g * ny, kz - g * nz)
+  return true
+}
+
+/** The back reflector as an ideal metal, normal −z (rs = −1, rp = +1): f becomes the field after the mirror. */
+export function metalReflect(f: Float64Array, kx: number, ky: number, kz: number): void {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz
+  metalReflectIn(f)
+}
+
+/** metalReflect with k in pin[0..2]. */
+export function metalReflectIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
+  project(f, kx, ky, kz, 0, 0, -1)
+  compose(f, -pj[6]!, -pj[7]!, pj[8]!, pj[9]!, kx, ky, -kz)
+}
+
+/** A random linear polarisation for a ray along k: angle 2πu from the s direction of k against z (f real). */
+export function randomPolarization(f: Float64Array, u: number, kx: number, ky: number, kz: number): void {
+  pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[10] = u
+  randomPolarizationIn(f)
+}
+
+/** randomPolarization with k in pin[0..2] and u in pin[10]. */
+export function randomPolarizationIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
+  f[0] = 0; f[1] = 0; f[2] = 0; f[3] = 0; f[4] = 0; f[5] = 0
+  project(f, kx, ky, kz, 0, 0, 1)
+  const psi = 2 * Math.PI * pin[10]!
+  compose(f, Math.cos(psi), 0, Math.sin(psi), 0, kx, ky, kz)
 }

@@ -1,7 +1,7 @@
 // The state of one ray in the readable model (steps.ts): where it is, where it goes, which medium it is in, and
 // its own slice of the random stream. Frame z up, µm. Positions are kept relative to the current lattice site
 // (x, y) with the site offset (ox, oy) removed by wrapping: the absolute lateral position is (x + ox, y + oy).
-// Polarisation and wavelength belong here as further slots when they come.
+// With Fresnel mode "polarized" the ray's field (a complex unit vector perpendicular to d, crossings.ts) is in pol.
 import { createRngState, nextUniform, seedRay, type RngState } from './rng'
 
 export const MEDIUM_EMITTER = 0
@@ -26,11 +26,16 @@ export interface Ray {
   end: number
   /** Reflections so far (reflector, Fresnel, TIR): a diagnostic for the preview, not tallied. */
   bounces: number
+  /** Field [xRe, xIm, yRe, yIm, zRe, zIm] (Fresnel mode "polarized" only; else unused). */
+  pol: Float64Array
+  /** Wavelength (nm) and the ray's indices and absorption (1/µm) at it: the scene's unless it has a spectrum. */
+  wavelengthNm: number
+  nE: number; nS: number; nL: number; alphaS: number; alphaL: number
   rng: RngState
 }
 
 export function createRay(): Ray {
-  return { x: 0, y: 0, z: 0, ox: 0, oy: 0, dx: 0, dy: 0, dz: 1, medium: MEDIUM_EMITTER, onCap: false, excludeSelf: false, events: 0, end: -1, bounces: 0, rng: createRngState() }
+  return { x: 0, y: 0, z: 0, ox: 0, oy: 0, dx: 0, dy: 0, dz: 1, medium: MEDIUM_EMITTER, onCap: false, excludeSelf: false, events: 0, end: -1, bounces: 0, pol: new Float64Array(6), wavelengthNm: 550, nE: 1, nS: 1, nL: 1, alphaS: 0, alphaL: 0, rng: createRngState() }
 }
 
 /** Puts the ray at the start of its life: ray `rayIndex` of stream `streamId` of `seed`, nowhere yet. */

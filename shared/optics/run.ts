@@ -3,7 +3,7 @@
 // follows (σE/E)² = (σ1/η1)² + (σ2/η2)². A planar scenario is its own companion (enhancement exactly 1, σ 0).
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import type { Scenario } from '../types/scenario'
+import type { FresnelMode, Scenario } from '../types/scenario'
 import type { Losses, TraceResult } from '../types/result'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
@@ -70,7 +70,7 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const run = prepareRun(sc)
   const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
-  return summarize(total, seed)
+  return summarize(total, seed, sc.trace.fresnel)
 }
 
 function binomialErr(count: number, n: number): number {
@@ -115,7 +115,8 @@ function angularProfile(t: Tally) {
   return { perSteradian, perSteradianStdErr, luminanceRelative, luminanceRelativeStdErr }
 }
 
-export function summarize(t: RunTallies, seed: number): TraceResult {
+/** `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was kept). */
+export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode): TraceResult {
   const d = t.device
   const n = d[T_RAYS]!
   const ext = n > 0 ? d[T_EXTRACTED]! / n : 0
@@ -206,6 +207,7 @@ export function summarize(t: RunTallies, seed: number): TraceResult {
   return {
     rays: n,
     seed,
+    ...(fresnel !== undefined ? { fresnel } : {}),
     extraction: ext,
     extractionStdErr: extErr,
     losses: L.v,

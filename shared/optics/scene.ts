@@ -1,7 +1,8 @@
 // Packs a validated scenario into the flat numeric scene the tracer reads (Float64Array, fixed slots, integer
 // tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
 // A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
-import type { Scenario } from '../types/scenario'
+import { DEFAULT_WAVELENGTH_NM, extinctionAt, indexAt, type IndexModel, type Scenario } from '../types/scenario'
+import { buildSpectralBlock, SP_AL, SP_AS, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID } from './spectral'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
@@ -24,11 +25,15 @@ export const S_PROFILE = 14 // 0 isotropic, 1 lambertian, 2 table
 export const S_SOURCE = 15 // 0 extended, 1 disc, 2 rectangle
 export const S_SOURCE_A_UM = 16 // disc radius or rectangle width
 export const S_SOURCE_B_UM = 17 // rectangle height
-export const S_FRESNEL = 18 // 0 averaged, 1 none
+export const S_FRESNEL = 18 // 0 averaged, 1 none, 2 polarized
 export const S_MAX_EVENTS = 19
 /** Measured cap profile (shape "measured"): knot count (0 for quadric caps) and offset of [u…, w…, m…]. */
 export const S_MEASURED_KNOTS = 20
 export const S_MEASURED_OFFSET = 21
+/** Offset of the spectral block (spectral.ts) when the emitter has a spectrum, else 0. */
+export const S_SPECTRAL_OFFSET = 22
+/** Lens material absorption (1/µm): the substrate's plus 4πk/λ of a tabulated lens index. */
+export const S_LENS_ABSORPTION_PER_UM = 23
 export const S_HEADER = 24
 /** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
 export const S_TABLE = S_HEADER
@@ -43,6 +48,7 @@ export const SOURCE_DISC = 1
 export const SOURCE_RECTANGLE = 2
 export const FRESNEL_AVERAGED = 0
 export const FRESNEL_NONE = 1
+export const FRESNEL_POLARIZED = 2
 
 export type PackedScene = Float64Array
 
@@ -52,12 +58,20 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   const tableLen = typeof prof === 'object' ? 2 * (PROFILE_GRID + 1) : 0
   const lens = opts.planar ? null : sc.lensArray
   const measured = lens && lens.shape === 'measured' && lens.profile ? buildProfile(lens.profile) : null
-  const s = new Float64Array(S_HEADER + tableLen + (measured ? 3 * measured.u.length : 0))
+  const spectral = sc.emitter.spectrum !== undefined
+  const measuredLen = measured ? 3 * measured.u.length : 0
+  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0))
+  // Indices at the monochromatic wavelength (a spectrum replaces them ray by ray from the spectral block)
+  const lam = DEFAULT_WAVELENGTH_NM
+  const lensIndex: IndexModel = sc.lensArray?.index ?? sc.substrate.index
+  const base = sc.substrate.absorptionPerMm / 1000
+  const kAbs = (m: IndexModel) => (4 * Math.PI * extinctionAt(m, lam)) / (lam / 1000)
   s[S_HAS_LENS] = lens ? 1 : 0
-  s[S_N_EMITTER] = sc.emitter.index
-  s[S_N_SUBSTRATE] = sc.substrate.index
+  s[S_N_EMITTER] = indexAt(sc.emitter.index, lam)
+  s[S_N_SUBSTRATE] = indexAt(sc.substrate.index, lam)
   s[S_THICKNESS_UM] = sc.substrate.thicknessUm
-  s[S_ABSORPTION_PER_UM] = sc.substrate.absorptionPerMm / 1000
+  s[S_ABSORPTION_PER_UM] = base + kAbs(sc.substrate.index)
+  s[S_LENS_ABSORPTION_PER_UM] = base + kAbs(lensIndex)
   s[S_REFLECTANCE] = sc.reflector.reflectance
   s[S_DIFFUSE_FRACTION] = sc.reflector.diffuseFraction
   const geo = sc.lensArray // the lattice still defines the launch cell of an extended source in the planar twin
@@ -66,13 +80,14 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   if (lens) {
     // A measured cap ignores c and k1 (measured-cap.ts); they are the sphere's so nothing reads NaN.
     const k = lens.shape === 'measured' ? 0 : shapeConicConstant(lens.shape, lens.conicConstant)
-    s[S_N_LENS] = lens.index ?? sc.substrate.index
+    s[S_N_LENS] = indexAt(lensIndex, lam)
     s[S_LENS_RADIUS_UM] = lens.diameterUm / 2
     s[S_SAG_UM] = lens.sagUm
     s[S_CURVATURE_PER_UM] = conicCurvaturePerUm(lens.diameterUm, lens.sagUm, k)
     s[S_K1] = 1 + k
   } else {
-    s[S_N_LENS] = sc.substrate.index
+    s[S_N_LENS] = s[S_N_SUBSTRATE]!
+    s[S_LENS_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! // no lens: nothing reads it
   }
   if (prof === 'isotropic') s[S_PROFILE] = PROFILE_ISOTROPIC
   else if (prof === 'lambertian') s[S_PROFILE] = PROFILE_LAMBERTIAN
@@ -84,13 +99,18 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   if (src.shape === 'extended') s[S_SOURCE] = SOURCE_EXTENDED
   else if (src.shape === 'disc') { s[S_SOURCE] = SOURCE_DISC; s[S_SOURCE_A_UM] = src.radiusUm }
   else { s[S_SOURCE] = SOURCE_RECTANGLE; s[S_SOURCE_A_UM] = src.widthUm; s[S_SOURCE_B_UM] = src.heightUm }
-  s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : FRESNEL_AVERAGED
+  s[S_FRESNEL] = sc.trace.fresnel === 'none' ? FRESNEL_NONE : sc.trace.fresnel === 'polarized' ? FRESNEL_POLARIZED : FRESNEL_AVERAGED
   s[S_MAX_EVENTS] = sc.trace.maxEvents
   if (measured) {
     const n = measured.u.length, at = S_HEADER + tableLen
     s[S_MEASURED_KNOTS] = n
     s[S_MEASURED_OFFSET] = at
     s.set(measured.u, at); s.set(measured.w, at + n); s.set(measured.m, at + 2 * n)
+  }
+  if (spectral) {
+    const at = S_HEADER + tableLen + measuredLen
+    s[S_SPECTRAL_OFFSET] = at
+    s.set(buildSpectralBlock(sc, lensIndex), at)
   }
   return s
 }
@@ -108,6 +128,9 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   const s = scene.slice()
   s[S_THICKNESS_UM] = s[S_THICKNESS_UM]! * factor
   s[S_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! / factor
+  s[S_LENS_ABSORPTION_PER_UM] = s[S_LENS_ABSORPTION_PER_UM]! / factor
+  const sp = s[S_SPECTRAL_OFFSET]!
+  if (sp > 0) for (let j = SP_AS; j < SP_AL + SPECTRAL_GRID + 1; j++) s[sp + j] = s[sp + j]! / factor
   s[S_PITCH_UM] = s[S_PITCH_UM]! * factor
   s[S_LENS_RADIUS_UM] = s[S_LENS_RADIUS_UM]! * factor
   s[S_SAG_UM] = s[S_SAG_UM]! * factor

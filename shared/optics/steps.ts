@@ -5,15 +5,16 @@
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
 // top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts.
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing } from './crossings'
+import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, metalReflect, randomPolarization } from './crossings'
 import { capHit, capNormal } from './geometry'
 import { HEX_ROW_FACTOR, sampleCell, wrapToSite } from './lattice'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { draw, MEDIUM_AIR, MEDIUM_EMITTER, MEDIUM_LENS, MEDIUM_SUBSTRATE, RAY_ENDED, type Ray } from './ray'
+import { sampleWavelength, SP_AL, SP_AS, SP_NE, SP_NL, SP_NS, spectralValue } from './spectral'
 import { sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
-  FRESNEL_NONE, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
-  S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS,
+  FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
+  S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_ABSORPTION_PER_UM, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_SPECTRAL_OFFSET,
   S_N_EMITTER, S_N_LENS, S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM,
   S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
@@ -24,12 +25,16 @@ export interface Stack {
   scene: PackedScene
   hasLens: boolean
   nEmitter: number; nSubstrate: number; nLens: number
-  thicknessUm: number; absorptionPerUm: number
+  thicknessUm: number; absorptionPerUm: number; lensAbsorptionPerUm: number
+  /** Offset of the spectral block (spectral.ts), 0 without a spectrum. */
+  spectralAt: number
   reflectance: number; diffuseFraction: number
   hexagonal: boolean; pitchUm: number; lensRadiusUm: number; sagUm: number; curvaturePerUm: number; k1: number
   measured: boolean
   profile: number; source: number; sourceAUm: number; sourceBUm: number
   fresnel: boolean
+  /** Fresnel mode "polarized": the ray's field is tracked (ray.pol). */
+  polarized: boolean
   maxEvents: number
 }
 
@@ -45,13 +50,15 @@ export function stackOf(scene: PackedScene): Stack {
     scene,
     hasLens: scene[S_HAS_LENS]! !== 0,
     nEmitter: scene[S_N_EMITTER]!, nSubstrate: scene[S_N_SUBSTRATE]!, nLens: scene[S_N_LENS]!,
-    thicknessUm: scene[S_THICKNESS_UM]!, absorptionPerUm: scene[S_ABSORPTION_PER_UM]!,
+    thicknessUm: scene[S_THICKNESS_UM]!, absorptionPerUm: scene[S_ABSORPTION_PER_UM]!, lensAbsorptionPerUm: scene[S_LENS_ABSORPTION_PER_UM]!,
+    spectralAt: scene[S_SPECTRAL_OFFSET]!,
     reflectance: scene[S_REFLECTANCE]!, diffuseFraction: scene[S_DIFFUSE_FRACTION]!,
     hexagonal: scene[S_LATTICE]! !== LATTICE_SQUARE, pitchUm: scene[S_PITCH_UM]!, lensRadiusUm: scene[S_LENS_RADIUS_UM]!,
     sagUm: scene[S_SAG_UM]!, curvaturePerUm: scene[S_CURVATURE_PER_UM]!, k1: scene[S_K1]!,
     measured: measured !== null,
     profile: scene[S_PROFILE]!, source: scene[S_SOURCE]!, sourceAUm: scene[S_SOURCE_A_UM]!, sourceBUm: scene[S_SOURCE_B_UM]!,
     fresnel: scene[S_FRESNEL]! !== FRESNEL_NONE,
+    polarized: scene[S_FRESNEL]! === FRESNEL_POLARIZED,
     maxEvents: scene[S_MAX_EVENTS]!,
   }
 }
@@ -67,6 +74,7 @@ export interface RayRecorder {
 }
 
 const v3 = new Float64Array(3)
+const cell = new Float64Array(2)
 const site = new Float64Array(3)
 
 function end(ray: Ray, slot: number): number {
@@ -79,12 +87,12 @@ function at(ray: Ray, rec: RayRecorder | undefined): void {
 }
 
 /** Beer–Lambert: an exponential free path −ln(u)/α against the segment; true when the ray is absorbed on it. */
-function absorbedOn(ray: Ray, st: Stack, pathUm: number, rec: RayRecorder | undefined): boolean {
-  if (!(st.absorptionPerUm > 0)) return false
+function absorbedOn(ray: Ray, alpha: number, pathUm: number, rec: RayRecorder | undefined): boolean {
+  if (!(alpha > 0)) return false
   const free = -Math.log(draw(ray))
-  if (!(free < st.absorptionPerUm * pathUm)) return false
+  if (!(free < alpha * pathUm)) return false
   if (rec !== undefined) {
-    const s = free / st.absorptionPerUm
+    const s = free / alpha
     rec.vertex(ray.x + ray.ox + ray.dx * s, ray.y + ray.oy + ray.dy * s, ray.z + ray.dz * s)
   }
   return true
@@ -113,6 +121,19 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   else if (st.profile === PROFILE_LAMBERTIAN) sampleLambertian(draw(ray), draw(ray), v3)
   else sampleTabulated(st.scene, S_TABLE, draw(ray), draw(ray), draw(ray), v3)
   ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+  if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // unpolarised: a random linear state
+  if (st.spectralAt > 0) {
+    // the ray's wavelength from the spectrum, and its indices there (spectral.ts)
+    const at = st.spectralAt
+    ray.wavelengthNm = sampleWavelength(st.scene, at, draw(ray), cell)
+    const j = cell[0]!, f = cell[1]!
+    ray.nE = spectralValue(st.scene, at, SP_NE, j, f); ray.nS = spectralValue(st.scene, at, SP_NS, j, f)
+    ray.nL = spectralValue(st.scene, at, SP_NL, j, f)
+    ray.alphaS = spectralValue(st.scene, at, SP_AS, j, f); ray.alphaL = spectralValue(st.scene, at, SP_AL, j, f)
+  } else {
+    ray.wavelengthNm = 550
+    ray.nE = st.nEmitter; ray.nS = st.nSubstrate; ray.nL = st.nLens; ray.alphaS = st.absorptionPerUm; ray.alphaL = st.lensAbsorptionPerUm
+  }
   ray.medium = MEDIUM_EMITTER
   at(ray, rec)
 }
@@ -129,10 +150,14 @@ export function emitterStep(ray: Ray, st: Stack): number {
     if (st.diffuseFraction > 0 && draw(ray) < st.diffuseFraction) {
       sampleLambertian(draw(ray), draw(ray), v3)
       ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
-    } else ray.dz = -ray.dz
+      if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // diffuse re-emission depolarises
+    } else {
+      if (st.polarized) metalReflect(ray.pol, ray.dx, ray.dy, ray.dz) // ideal metal: rs = −1, rp = +1
+      ray.dz = -ray.dz
+    }
     return MEDIUM_EMITTER
   }
-  const c = flatCrossing(ray, true, st.nEmitter, st.nSubstrate, st.fresnel && st.nEmitter !== st.nSubstrate)
+  const c = flatCrossing(ray, true, ray.nE, ray.nS, st.fresnel && ray.nE !== ray.nS, st.polarized)
   if (c === CROSS_TIR) return end(ray, T_WAVEGUIDED)
   if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_EMITTER }
   return MEDIUM_SUBSTRATE
@@ -147,13 +172,13 @@ export function emitterStep(ray: Ray, st: Stack): number {
 export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   const tUm = st.thicknessUm
   const pathUm = ray.dz > 0 ? tUm / ray.dz : -tUm / ray.dz
-  if (absorbedOn(ray, st, pathUm, rec)) return end(ray, T_SUBSTRATE)
+  if (absorbedOn(ray, ray.alphaS, pathUm, rec)) return end(ray, T_SUBSTRATE)
   // (the fused loop skips moving the ray when no result depends on its lateral position; the model always moves it)
   if (ray.dz < 0) {
     ray.z = 0
     ray.x += ray.dx * pathUm; ray.y += ray.dy * pathUm
     at(ray, rec)
-    const c = flatCrossing(ray, false, st.nSubstrate, st.nEmitter, st.fresnel && st.nEmitter !== st.nSubstrate)
+    const c = flatCrossing(ray, false, ray.nS, ray.nE, st.fresnel && ray.nE !== ray.nS, st.polarized)
     if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
     if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
     return MEDIUM_EMITTER
@@ -166,8 +191,8 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     const sx = site[1]!, sy = site[2]!
     ray.x -= sx; ray.y -= sy; ray.ox += sx; ray.oy += sy
     if (ray.x * ray.x + ray.y * ray.y < st.lensRadiusUm * st.lensRadiusUm) {
-      if (st.nLens !== st.nSubstrate) {
-        const c = flatCrossing(ray, true, st.nSubstrate, st.nLens, st.fresnel)
+      if (ray.nL !== ray.nS) {
+        const c = flatCrossing(ray, true, ray.nS, ray.nL, st.fresnel, st.polarized)
         if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
         if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }
       }
@@ -175,7 +200,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
       return MEDIUM_LENS
     }
   }
-  const c = flatCrossing(ray, true, st.nSubstrate, 1, st.fresnel)
+  const c = flatCrossing(ray, true, ray.nS, 1, st.fresnel, st.polarized)
   if (c === CROSS_TIR) {
     if (!st.hasLens && (st.diffuseFraction === 0 || st.reflectance === 0)) return end(ray, T_TRAPPED)
     ray.dz = -ray.dz; ray.bounces++
@@ -199,21 +224,21 @@ export function lensStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     : capHit(ray.x, ray.y, ray.z, ray.dx, ray.dy, ray.dz, zv, st.curvaturePerUm, st.k1, st.sagUm, ray.onCap)
   const tB = ray.dz < 0 ? (tUm - ray.z) / ray.dz : Infinity
   if (tS > 0 && tS < tB) {
-    if (absorbedOn(ray, st, tS, rec)) return end(ray, T_SUBSTRATE)
+    if (absorbedOn(ray, ray.alphaL, tS, rec)) return end(ray, T_SUBSTRATE)
     ray.x += ray.dx * tS; ray.y += ray.dy * tS; ray.z += ray.dz * tS
     at(ray, rec)
     capNormalAt(ray, st, v3)
-    const c = curvedCrossing(ray, v3[0]!, v3[1]!, v3[2]!, st.nLens, 1, st.fresnel)
+    const c = curvedCrossing(ray, v3[0]!, v3[1]!, v3[2]!, ray.nL, 1, st.fresnel, st.polarized)
     if (c !== CROSS_TRANSMIT) { ray.onCap = true; ray.bounces++; return MEDIUM_LENS }
     ray.excludeSelf = true
     return MEDIUM_AIR
   }
   if (tB === Infinity) return end(ray, T_UNRESOLVED) // no exit found (numerically degenerate ray)
-  if (absorbedOn(ray, st, tB, rec)) return end(ray, T_SUBSTRATE)
+  if (absorbedOn(ray, ray.alphaL, tB, rec)) return end(ray, T_SUBSTRATE)
   ray.x += ray.dx * tB; ray.y += ray.dy * tB; ray.z = tUm
   at(ray, rec)
-  if (st.nLens !== st.nSubstrate) {
-    const c = flatCrossing(ray, false, st.nLens, st.nSubstrate, st.fresnel)
+  if (ray.nL !== ray.nS) {
+    const c = flatCrossing(ray, false, ray.nL, ray.nS, st.fresnel, st.polarized)
     if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
     if (c !== CROSS_TRANSMIT) { ray.onCap = false; ray.bounces++; return MEDIUM_LENS }
   }
@@ -236,7 +261,7 @@ export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.z = st.thicknessUm
     at(ray, rec)
     ray.bounces++ // back into the film from air, whatever happens next
-    const c = flatCrossing(ray, false, 1, st.nSubstrate, st.fresnel)
+    const c = flatCrossing(ray, false, 1, ray.nS, st.fresnel, st.polarized)
     if (c !== CROSS_TRANSMIT) { ray.excludeSelf = false; return MEDIUM_AIR }
     return MEDIUM_SUBSTRATE
   }
@@ -246,7 +271,7 @@ export function airStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   ray.bounces++
   capNormalAt(ray, st, v3)
   // the normal on the lens side (into the far medium) is the inward one
-  const c = curvedCrossing(ray, -v3[0]!, -v3[1]!, -v3[2]!, 1, st.nLens, st.fresnel)
+  const c = curvedCrossing(ray, -v3[0]!, -v3[1]!, -v3[2]!, 1, ray.nL, st.fresnel, st.polarized)
   if (c !== CROSS_TRANSMIT) { ray.excludeSelf = true; return MEDIUM_AIR } // a convex cap cannot be met twice by a straight ray
   ray.onCap = true
   return MEDIUM_LENS

@@ -18,14 +18,15 @@ import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHitTo, HEX_ROW_FACTOR } from './geometry'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { fresnelReflects } from './crossings'
+import { fresnelReflects, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn } from './crossings'
 import { wrapToSite } from './lattice'
+import { SP_AL, SP_AS, SP_CDF, SP_NE, SP_NL, SP_NS, SPECTRAL_GRID } from './spectral'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
-  FRESNEL_NONE, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
+  FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
   S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
-  S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
+  S_N_SUBSTRATE, S_LENS_ABSORPTION_PER_UM, S_SPECTRAL_OFFSET, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
@@ -53,6 +54,8 @@ const ubuf = new Float64Array(UB)
 const v3 = new Float64Array(3)
 // Scratch: capHitTo writes τ into hit[0], wrapToSite the site into hit[1], hit[2].
 const hit = new Float64Array(3)
+// The ray's field in Fresnel mode "polarized" (crossings.ts: [xRe, xIm, yRe, yIm, zRe, zIm]).
+const pol = new Float64Array(6)
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
@@ -64,8 +67,10 @@ export function traceRange(
   shouldStop?: () => boolean, streamId = 0, eventBudget = Infinity,
 ): number {
   const hasLens = scene[S_HAS_LENS]! !== 0
-  const nE = scene[S_N_EMITTER]!, nS = scene[S_N_SUBSTRATE]!, nL = scene[S_N_LENS]!
-  const tUm = scene[S_THICKNESS_UM]!, alpha = scene[S_ABSORPTION_PER_UM]!
+  const nE0 = scene[S_N_EMITTER]!, nS0 = scene[S_N_SUBSTRATE]!, nL0 = scene[S_N_LENS]!
+  const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
+  const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
+  const spCdf = spAt + SP_CDF
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -78,6 +83,7 @@ export function traceRange(
   const profile = scene[S_PROFILE]!, source = scene[S_SOURCE]!
   const srcA = scene[S_SOURCE_A_UM]!, srcB = scene[S_SOURCE_B_UM]!
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
+  const polar = scene[S_FRESNEL]! === FRESNEL_POLARIZED
   const maxEvents = scene[S_MAX_EVENTS]!
   const specular = fd === 0 || rb === 0
   // Lateral positions matter with a lens array (which cap) and for a finite pixel (the footprint tally).
@@ -102,6 +108,27 @@ export function traceRange(
     else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
+    if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
+    let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
+    if (spAt > 0) {
+      // the ray's wavelength, and its indices and absorption there
+      // spectral.ts sampleWavelength and spectralValue, inlined by hand (same operations in the same order)
+      const uw = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
+      let lo = 0, hi = SPECTRAL_GRID
+      while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (scene[spCdf + mid]! <= uw) lo = mid; else hi = mid }
+      const ca = scene[spCdf + lo]!, cb = scene[spCdf + lo + 1]!
+      const f = cb > ca ? (uw - ca) / (cb - ca) : 0
+      let q = spAt + SP_NE + lo, va = scene[q]!
+      nE = va + f * (scene[q + 1]! - va)
+      q = spAt + SP_NS + lo; va = scene[q]!
+      nS = va + f * (scene[q + 1]! - va)
+      q = spAt + SP_NL + lo; va = scene[q]!
+      nL = va + f * (scene[q + 1]! - va)
+      q = spAt + SP_AS + lo; va = scene[q]!
+      alpha = va + f * (scene[q + 1]! - va)
+      q = spAt + SP_AL + lo; va = scene[q]!
+      alphaL = va + f * (scene[q + 1]! - va)
+    }
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
     let events = 0
@@ -119,7 +146,11 @@ export function traceRange(
             if (fd > 0 && (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)) < fd) {
               sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
               dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
-            } else dz = -dz
+              if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
+            } else {
+              if (polar) { pin[0] = dx; pin[1] = dy; pin[2] = dz; metalReflectIn(pol) }
+              dz = -dz
+            }
             break
           }
           // emitter → substrate, normal +z, cosI = dz
@@ -127,7 +158,7 @@ export function traceRange(
           const sin2T = eta * eta * (1 - dz * dz)
           if (sin2T >= 1) { end = T_WAVEGUIDED; break }
           const cosT = Math.sqrt(1 - sin2T)
-          if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nE, nS)) { dz = -dz; break }
+          if (!noFresnel && nE !== nS && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = 1, pin[6] = dz, pin[7] = cosT, pin[8] = nE, pin[9] = nS, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nE, nS))) { dz = -dz; break }
           dx *= eta; dy *= eta; dz = cosT
           med = MED_SUBSTRATE
           break
@@ -143,9 +174,9 @@ export function traceRange(
             const cosI = -dz
             const eta = nS / nE
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1) { dz = cosI; break }
+            if (sin2T >= 1) { if (polar) (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = -1, pin[6] = cosI, pin[7] = sin2T, pin[8] = nS, pin[9] = nE, polarizedTirIn(pol)); dz = cosI; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && nE !== nS && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nS, nE)) { dz = cosI; break }
+            if (!noFresnel && nE !== nS && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = -1, pin[6] = cosI, pin[7] = cosT, pin[8] = nS, pin[9] = nE, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nS, nE))) { dz = cosI; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_EMITTER
             break
@@ -162,9 +193,9 @@ export function traceRange(
               if (nL !== nS) {
                 const eta = nS / nL
                 const sin2T = eta * eta * (1 - dz * dz)
-                if (sin2T >= 1) { dz = -dz; break }
+                if (sin2T >= 1) { if (polar) (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = 1, pin[6] = dz, pin[7] = sin2T, pin[8] = nS, pin[9] = nL, polarizedTirIn(pol)); dz = -dz; break }
                 const cosT = Math.sqrt(1 - sin2T)
-                if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, nL)) { dz = -dz; break }
+                if (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = 1, pin[6] = dz, pin[7] = cosT, pin[8] = nS, pin[9] = nL, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, nL))) { dz = -dz; break }
                 dx *= eta; dy *= eta; dz = cosT
               }
               med = MED_LENS
@@ -178,11 +209,12 @@ export function traceRange(
             const sin2T = eta * eta * (1 - dz * dz)
             if (sin2T >= 1) {
               if (!hasLens && specular) { end = T_TRAPPED; break }
+              if (polar) (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = 1, pin[6] = dz, pin[7] = sin2T, pin[8] = nS, pin[9] = 1, polarizedTirIn(pol))
               dz = -dz
               break
             }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, 1)) { dz = -dz; break }
+            if (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = 1, pin[6] = dz, pin[7] = cosT, pin[8] = nS, pin[9] = 1, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), dz, cosT, nS, 1))) { dz = -dz; break }
             dx *= eta; dy *= eta; dz = cosT
             if (!hasLens) { end = T_EXTRACTED; break }
             med = MED_AIR
@@ -196,7 +228,7 @@ export function traceRange(
           const tS = hit[0]!
           const tB = dz < 0 ? (tUm - z) / dz : Infinity
           if (tS > 0 && tS < tB) {
-            if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tS) { end = T_SUBSTRATE; break }
+            if (alphaL > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alphaL * tS) { end = T_SUBSTRATE; break }
             x += dx * tS; y += dy * tS; z += dz * tS
             // outward normal (see geometry.ts)
             let nx = cv * x, ny = cv * y, nz = 1 - k1 * cv * (zv - z)
@@ -206,7 +238,9 @@ export function traceRange(
             const cosI = dx * nx + dy * ny + dz * nz
             const eta = nL
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1 || (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nL, 1))) {
+            if (sin2T >= 1
+              ? (!polar || (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = nx, pin[4] = ny, pin[5] = nz, pin[6] = cosI, pin[7] = sin2T, pin[8] = nL, pin[9] = 1, polarizedTirIn(pol)))
+              : (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = nx, pin[4] = ny, pin[5] = nz, pin[6] = cosI, pin[7] = Math.sqrt(1 - sin2T), pin[8] = nL, pin[9] = 1, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nL, 1)))) {
               dx -= 2 * cosI * nx; dy -= 2 * cosI * ny; dz -= 2 * cosI * nz
               onCap = true
               break
@@ -219,15 +253,15 @@ export function traceRange(
             break
           }
           if (tB === Infinity) { end = T_UNRESOLVED; break } // no exit found (numerically degenerate ray)
-          if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * tB) { end = T_SUBSTRATE; break }
+          if (alphaL > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alphaL * tB) { end = T_SUBSTRATE; break }
           x += dx * tB; y += dy * tB; z = tUm
           if (nL !== nS) {
             const cosI = -dz
             const eta = nL / nS
             const sin2T = eta * eta * (1 - cosI * cosI)
-            if (sin2T >= 1) { dz = cosI; onCap = false; break }
+            if (sin2T >= 1) { if (polar) (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = -1, pin[6] = cosI, pin[7] = sin2T, pin[8] = nL, pin[9] = nS, polarizedTirIn(pol)); dz = cosI; onCap = false; break }
             const cosT = Math.sqrt(1 - sin2T)
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nL, nS)) { dz = cosI; onCap = false; break }
+            if (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = -1, pin[6] = cosI, pin[7] = cosT, pin[8] = nL, pin[9] = nS, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, nL, nS))) { dz = cosI; onCap = false; break }
             dx *= eta; dy *= eta; dz = -cosT
           }
           med = MED_SUBSTRATE
@@ -245,7 +279,7 @@ export function traceRange(
             const cosI = -dz
             const eta = 1 / nS
             const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-            if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nS)) { dz = cosI; excludeSelf = false; break }
+            if (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = 0, pin[4] = 0, pin[5] = -1, pin[6] = cosI, pin[7] = cosT, pin[8] = 1, pin[9] = nS, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nS))) { dz = cosI; excludeSelf = false; break }
             dx *= eta; dy *= eta; dz = -cosT
             med = MED_SUBSTRATE
             break
@@ -259,7 +293,7 @@ export function traceRange(
           const cosI = -(dx * nx + dy * ny + dz * nz)
           const eta = 1 / nL
           const cosT = Math.sqrt(1 - eta * eta * (1 - cosI * cosI))
-          if (!noFresnel && fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nL)) {
+          if (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = -nx, pin[4] = -ny, pin[5] = -nz, pin[6] = cosI, pin[7] = cosT, pin[8] = 1, pin[9] = nL, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, cosT, 1, nL))) {
             dx += 2 * cosI * nx; dy += 2 * cosI * ny; dz += 2 * cosI * nz
             excludeSelf = true // a convex cap cannot be met twice by a straight ray
             break

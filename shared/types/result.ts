@@ -16,6 +16,8 @@ export const lossesSchema = z.object({
 export const resultSchema = z.object({
   rays: z.number().int(),
   seed: z.number().int(),
+  /** Fresnel mode of the trace ("averaged", "polarized" or "none"); absent in results stored before it was recorded. */
+  fresnel: z.enum(['averaged', 'none', 'polarized']).optional(),
   /** Fraction of launched rays that leave into air. */
   extraction: z.number(),
   /** Binomial standard error √(η(1−η)/N). */

@@ -34,8 +34,121 @@ export const sourceSchema = z.discriminatedUnion('shape', [
   z.object({ shape: z.literal('rectangle'), widthUm: z.number().positive().max(1e6), heightUm: z.number().positive().max(1e6) }),
 ])
 
+/** Increasing-wavelength check of [nm, ...] rows. */
+function increasingNm(rows: ReadonlyArray<readonly number[]>, ctx: z.RefinementCtx): boolean {
+  for (let i = 1; i < rows.length; i++) {
+    if (!(rows[i]![0]! > rows[i - 1]![0]!)) {
+      ctx.addIssue({ code: 'custom', path: [i, 0], message: `wavelength (nm) must increase row by row: got ${rows[i]![0]} after ${rows[i - 1]![0]}` })
+      return false
+    }
+  }
+  return true
+}
+
+const wavelengthNm = z.number().min(200, 'must be a wavelength of at least 200 nm').max(2500, 'must be a wavelength of at most 2500 nm')
+
+/**
+ * Emission spectrum (optional; absent: monochromatic 550 nm, no colour outputs): one line, a Gaussian band
+ * (peak, full width at half maximum; sampled over peak ± 3 FWHM), or a table [[nm, relative spectral power], ...]
+ * (linear between rows, zero outside).
+ */
+export const spectrumSchema = z.union([
+  z.object({ wavelengthNm }).strict(),
+  z.object({ peakNm: wavelengthNm, fwhmNm: z.number().positive('must be above 0 nm').max(1000) }).strict(),
+  z.object({
+    table: z.array(z.tuple([wavelengthNm, z.number().min(0, 'relative power must be at least 0')])).min(2, 'needs at least 2 rows (nm, relative power)').max(5000)
+      .superRefine((rows, ctx) => {
+        if (!increasingNm(rows, ctx)) return
+        if (!rows.some((r) => r[1] > 0)) ctx.addIssue({ code: 'custom', message: 'at least one relative power must be above 0' })
+      }),
+  }).strict(),
+])
+
+/**
+ * Refractive index of a material: a constant, a Sellmeier formula n² = 1 + Σ Bᵢλ²/(λ² − Cᵢ) (λ in µm, Cᵢ in µm²),
+ * a Cauchy formula n = A + B/λ² + C/λ⁴ (µm², µm⁴), or a table [[nm, n, k], ...] (linear between rows; k adds
+ * absorption α = 4πk/λ on top of absorptionPerMm in the substrate and lens).
+ */
+export const indexSchema = z.union([
+  z.number().min(1).max(4),
+  z.object({ sellmeier: z.object({ B: z.tuple([z.number(), z.number(), z.number()]), C: z.tuple([z.number().min(0), z.number().min(0), z.number().min(0)]) }).strict() }).strict(),
+  z.object({ cauchy: z.object({ A: z.number().min(1).max(4), B: z.number().default(0), C: z.number().default(0) }).strict() }).strict(),
+  z.object({
+    table: z.array(z.tuple([wavelengthNm, z.number().min(1, 'n must be at least 1').max(4, 'n must be at most 4'), z.number().min(0, 'k must be at least 0').max(10)]))
+      .min(2, 'needs at least 2 rows (nm, n, k)').max(5000)
+      .superRefine((rows, ctx) => { increasingNm(rows, ctx) }),
+  }).strict(),
+])
+export type IndexModel = z.infer<typeof indexSchema>
+export type Spectrum = z.infer<typeof spectrumSchema>
+
+/** Wavelength of a scenario without a spectrum (nm). */
+export const DEFAULT_WAVELENGTH_NM = 550
+
+/** Refractive index n at `nm` (NaN where a Sellmeier formula has no real index, e.g. at a pole). */
+export function indexAt(m: IndexModel, nm: number): number {
+  if (typeof m === 'number') return m
+  const um = nm / 1000, l2 = um * um
+  if ('sellmeier' in m) {
+    const { B, C } = m.sellmeier
+    const n2 = 1 + (B[0] * l2) / (l2 - C[0]) + (B[1] * l2) / (l2 - C[1]) + (B[2] * l2) / (l2 - C[2])
+    return n2 > 0 ? Math.sqrt(n2) : NaN
+  }
+  if ('cauchy' in m) return m.cauchy.A + m.cauchy.B / l2 + m.cauchy.C / (l2 * l2)
+  return tableAt(m.table, nm, 1)
+}
+
+/** Extinction coefficient k at `nm` (0 unless the index is a table). */
+export function extinctionAt(m: IndexModel, nm: number): number {
+  return typeof m === 'object' && 'table' in m ? tableAt(m.table, nm, 2) : 0
+}
+
+/** Column `col` of [nm, ...] rows linearly interpolated at `nm` (clamped to the end rows). */
+export function tableAt(rows: ReadonlyArray<readonly number[]>, nm: number, col: number): number {
+  if (nm <= rows[0]![0]!) return rows[0]![col]!
+  const last = rows.length - 1
+  if (nm >= rows[last]![0]!) return rows[last]![col]!
+  let lo = 0, hi = last
+  while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (rows[mid]![0]! <= nm) lo = mid; else hi = mid }
+  const a = rows[lo]!, b = rows[hi]!
+  const f = (nm - a[0]!) / (b[0]! - a[0]!)
+  return a[col]! + f * (b[col]! - a[col]!)
+}
+
+/** The wavelength span [min, max] (nm) a spectrum's rays are drawn from (a line: [λ, λ]). */
+export function spectrumRangeNm(sp: Spectrum | undefined): [number, number] {
+  if (sp === undefined) return [DEFAULT_WAVELENGTH_NM, DEFAULT_WAVELENGTH_NM]
+  if ('wavelengthNm' in sp) return [sp.wavelengthNm, sp.wavelengthNm]
+  if ('peakNm' in sp) return [Math.max(1, sp.peakNm - 3 * sp.fwhmNm), sp.peakNm + 3 * sp.fwhmNm]
+  return [sp.table[0]![0], sp.table[sp.table.length - 1]![0]]
+}
+
+/** Refuses an index that is not a real n in 1–4 over the spectrum's range, or a table that does not cover it. */
+function checkIndexOverSpectrum(m: IndexModel | undefined, path: Array<string | number>, range: [number, number], ctx: z.RefinementCtx): void {
+  if (m === undefined || typeof m === 'number') return
+  if ('table' in m) {
+    const t0 = m.table[0]![0], t1 = m.table[m.table.length - 1]![0]
+    if (range[0] < t0 || range[1] > t1) {
+      ctx.addIssue({ code: 'custom', path, message: `the index table covers ${t0}–${t1} nm but the spectrum spans ${round4(range[0])}–${round4(range[1])} nm` })
+    }
+    return
+  }
+  const steps = range[1] > range[0] ? 400 : 0
+  for (let i = 0; i <= steps; i++) {
+    const nm = steps === 0 ? range[0] : range[0] + ((range[1] - range[0]) * i) / steps
+    const n = indexAt(m, nm)
+    if (!(n >= 1 && n <= 4)) {
+      const form = 'sellmeier' in m ? 'Sellmeier' : 'Cauchy'
+      ctx.addIssue({ code: 'custom', path, message: `the ${form} formula gives n = ${Number.isNaN(n) ? 'no real value' : round4(n)} at ${round4(nm)} nm, inside the spectrum's range (n must be 1–4)` })
+      return
+    }
+  }
+}
+
 export const emitterSchema = z.object({
-  index: z.number().min(1).max(4),
+  index: indexSchema,
+  /** Emission spectrum; absent: monochromatic 550 nm (no colour outputs). */
+  spectrum: spectrumSchema.optional(),
   angularProfile: angularProfileSchema.default('isotropic'),
   source: sourceSchema.default({ shape: 'extended' }),
 })
@@ -46,7 +159,7 @@ export const reflectorSchema = z.object({
 })
 
 export const substrateSchema = z.object({
-  index: z.number().min(1).max(4),
+  index: indexSchema,
   thicknessUm: z.number().positive().max(1e6),
   absorptionPerMm: z.number().min(0).max(1e4).default(0),
 })
@@ -91,7 +204,7 @@ export const lensArraySchema = z
     /** Measured cap profile (required when shape is "measured"). */
     profile: lensProfileSchema.optional(),
     /** Lens material index; defaults to the substrate index. */
-    index: z.number().min(1).max(4).optional(),
+    index: indexSchema.optional(),
   })
   .superRefine((l, ctx) => {
     if (l.diameterUm > l.pitchUm) {
@@ -123,12 +236,16 @@ export const lensArraySchema = z
     }
   })
 
-export const fresnelModeSchema = z.enum(['averaged', 'none'])
+export const fresnelModeSchema = z.enum(['averaged', 'none', 'polarized'])
 
 export const traceSchema = z.object({
   rays: z.number().int().min(1).max(1e10).default(1_000_000),
   seed: z.number().int().min(0).max(0xffffffff).default(1),
-  /** "averaged": reflect with probability (Rs+Rp)/2 (reference). "none": transmit unless TIR (test extension). */
+  /**
+   * "averaged": reflect with probability (Rs+Rp)/2 (reference). "polarized": each ray carries its field and reflects
+   * with |rs|²|Es|² + |rp|²|Ep|². "none": transmit unless TIR (test extension). The schema default stays
+   * "averaged" so stored designs that omit the field keep their results; new designs are created "polarized".
+   */
   fresnel: fresnelModeSchema.default('averaged'),
   /**
    * Interface and reflector encounters after which a ray is counted as unresolved. At most 100 000: a ray still
@@ -145,6 +262,12 @@ export const scenarioSchema = z
     substrate: substrateSchema,
     lensArray: lensArraySchema.nullable(),
     trace: traceSchema.default({ rays: 1_000_000, seed: 1, fresnel: 'averaged', maxEvents: 10_000 }),
+  })
+  .superRefine((s, ctx) => {
+    const range = spectrumRangeNm(s.emitter.spectrum)
+    checkIndexOverSpectrum(s.emitter.index, ['emitter', 'index'], range, ctx)
+    checkIndexOverSpectrum(s.substrate.index, ['substrate', 'index'], range, ctx)
+    if (s.lensArray) checkIndexOverSpectrum(s.lensArray.index, ['lensArray', 'index'], range, ctx)
   })
   .transform((s) => ({
     ...s,

@@ -33,6 +33,21 @@ describe('simulate CLI', () => {
     expect(a.seed).toBe(1301)
     for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'enhancementStdErr', 'losses', 'intensity', 'luminance', 'planar']) expect(b[k]).toEqual(a[k])
   })
+  it('accepts Fresnel mode "polarized" (the result says so; 1 and 2 threads agree, seed 1302) and refuses an unknown mode naming trace.fresnel', () => {
+    writeFileSync(`${dir}/pol.json`, JSON.stringify({ ...example, trace: { ...example.trace, fresnel: 'polarized' } }))
+    const args = (t: string) => ['tsx', 'scripts/simulate.ts', `${dir}/pol.json`, '--rays', '30000', '--seed', '1302', '--threads', t, '--json']
+    const a = JSON.parse(execFileSync('npx', args('1'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const b = JSON.parse(execFileSync('npx', args('2'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    expect(a.fresnel).toBe('polarized')
+    for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'intensity', 'planar']) expect(b[k]).toEqual(a[k])
+    const text = run([`${dir}/pol.json`, '--rays', '5000', '--threads', '1'])
+    expect(text.status).toBe(0)
+    expect(text.stdout).toContain('Fresnel polarized')
+    writeFileSync(`${dir}/badmode.json`, JSON.stringify({ ...example, trace: { ...example.trace, fresnel: 'polarised-ish' } }))
+    const bad = run([`${dir}/badmode.json`])
+    expect(bad.status).toBe(2)
+    expect(bad.stderr).toContain('trace.fresnel')
+  })
   it('exit 2 with the field named for an invalid scenario, bad JSON, a missing file, a bad option', () => {
     writeFileSync(`${dir}/sag.json`, JSON.stringify({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } }))
     writeFileSync(`${dir}/broken.json`, '{ "emitter": ')

@@ -6,7 +6,7 @@ import { createTally, packScene, traceRange, type Tally, T_RAYS } from '../../sh
 /** 5σ two-sided: false-alarm 5.7e-7 per check (normal tail, Abramowitz & Stegun, Handbook of Mathematical Functions, §26.2; from memory). */
 export const K_SIGMA = 5
 
-export function planarStack(over: Partial<{ nE: number; nS: number; rb: number; fd: number; fresnel: 'averaged' | 'none'; profile: ScenarioInput['emitter']['angularProfile']; absorptionPerMm: number; thicknessUm: number }> = {}): Scenario {
+export function planarStack(over: Partial<{ nE: number; nS: number; rb: number; fd: number; fresnel: 'averaged' | 'none' | 'polarized'; profile: ScenarioInput['emitter']['angularProfile']; absorptionPerMm: number; thicknessUm: number }> = {}): Scenario {
   return scenarioSchema.parse({
     emitter: { index: over.nE ?? 1.7, angularProfile: over.profile ?? 'isotropic' },
     reflector: { reflectance: over.rb ?? 1, diffuseFraction: over.fd ?? 0 },

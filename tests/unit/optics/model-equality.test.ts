@@ -16,6 +16,7 @@ const sampledSphere = (a: number, h: number): Array<[number, number]> => {
   const Rc = (a * a + h * h) / (2 * h)
   return Array.from({ length: 41 }, (_, i) => [(a * i) / 40, Math.max(0, Math.sqrt(Rc * Rc - ((a * i) / 40) ** 2) - (Rc - h))] as [number, number])
 }
+const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
 const table = { table: [[0, 1], [30, 0.9], [60, 0.5], [89, 0.05], [90, 0]] as Array<[number, number]> }
 
 const cases: Record<string, ScenarioInput> = {
@@ -36,6 +37,14 @@ const cases: Record<string, ScenarioInput> = {
   'sparse hex, diffuse reflector, disc pixel': { emitter: { index: 1.8, angularProfile: 'lambertian', source: { shape: 'disc', radiusUm: 30 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.3 }, substrate: { index: 1.5, thicknessUm: 50, absorptionPerMm: 0 }, lensArray: { lattice: 'hexagonal', pitchUm: 30, diameterUm: 20, sagUm: 4, shape: 'spherical', index: 1.6 } },
   'emitter index below the substrate (TIR from the substrate side)': { ...stack, emitter: { ...stack.emitter, index: 1.4 }, substrate: { index: 1.6, thicknessUm: 40, absorptionPerMm: 1 }, lensArray: { ...hemi, shape: 'parabolic' } },
   'event limit of 6 (unresolved rays)': { ...stack, trace: { maxEvents: 6 }, lensArray: hemi },
+  'planar, polarized, specular mirror, absorbing': { ...stack, substrate: { ...stack.substrate, absorptionPerMm: 1 }, trace: { fresnel: 'polarized' }, lensArray: null },
+  'planar, polarized, Lambertian, diffuse mirror': { ...stack, emitter: { ...stack.emitter, angularProfile: 'lambertian' }, reflector: { reflectance: 0.9, diffuseFraction: 0.5 }, trace: { fresnel: 'polarized' }, lensArray: null },
+  'hex hemispheres, polarized, n 2.0, R 0.95': { emitter: { index: 2.0, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 0.95, diffuseFraction: 0 }, substrate: { index: 2.0, thicknessUm: 100, absorptionPerMm: 0 }, trace: { fresnel: 'polarized' }, lensArray: { ...hemi, index: 2.0 } },
+  'square hyperboloid, lens 1.6, polarized, disc pixel, diffuse': { ...stack, emitter: { ...stack.emitter, source: { shape: 'disc', radiusUm: 20 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.3 }, trace: { fresnel: 'polarized' }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 9, sagUm: 3, shape: 'conic', conicConstant: -2, index: 1.6 } },
+  'hex measured cap, polarized, emitter below a denser substrate': { ...stack, emitter: { ...stack.emitter, index: 1.4 }, substrate: { index: 1.6, thicknessUm: 40, absorptionPerMm: 0 }, trace: { fresnel: 'polarized' }, lensArray: { ...hemi, sagUm: 3, shape: 'measured', profile: sampledSphere(5, 3), index: 1.5 } },
+  'hex hemispheres, Gaussian spectrum, Sellmeier (BK7) substrate and lens, polarized': { ...stack, emitter: { ...stack.emitter, spectrum: { peakNm: 530, fwhmNm: 60 } }, substrate: { ...stack.substrate, index: bk7 }, trace: { fresnel: 'polarized' }, lensArray: hemi },
+  'square parabolic, table spectrum, tabulated n,k lens, Cauchy emitter, absorbing': { ...stack, emitter: { ...stack.emitter, index: { cauchy: { A: 1.68, B: 0.01 } }, spectrum: { table: [[420, 0.2], [460, 1], [520, 0.3], [560, 0.8], [640, 0.1]] } }, substrate: { ...stack.substrate, absorptionPerMm: 0.5 }, lensArray: { lattice: 'square', pitchUm: 20, diameterUm: 18, sagUm: 6, shape: 'parabolic', index: { table: [[400, 1.62, 0.00002], [700, 1.58, 0.00001]] } } },
+  'planar, line spectrum 610 nm, Sellmeier substrate, diffuse': { ...stack, emitter: { ...stack.emitter, spectrum: { wavelengthNm: 610 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.4 }, substrate: { ...stack.substrate, index: bk7 }, lensArray: null },
   'equal indices everywhere, ideal mirror': { emitter: { index: 1.5, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 1, diffuseFraction: 0 }, substrate: { index: 1.5, thicknessUm: 20, absorptionPerMm: 0 }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } },
 }
 
