@@ -1,12 +1,12 @@
 // Starting points for a new design. Invented round values (no published device): a bottom-emitting stack of
-// emitter index 1.7 on 100 µm glass of 1.5 with an 80 % back reflector, and four lens choices.
+// emitter index 1.7 on 100 µm glass of 1.5 with an 80 % back reflector, and four lens choices. New designs trace polarisation-tracked Fresnel.
 import type { ScenarioInput } from '#shared/types/scenario'
 
 const stack = {
   emitter: { index: 1.7, angularProfile: 'isotropic', source: { shape: 'extended' } },
   reflector: { reflectance: 0.8, diffuseFraction: 0 },
   substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
-  trace: { rays: 1_000_000, seed: 1, fresnel: 'averaged', maxEvents: 10_000 },
+  trace: { rays: 1_000_000, seed: 1, fresnel: 'polarized', maxEvents: 10_000 },
 } satisfies Omit<ScenarioInput, 'lensArray'>
 
 export interface DesignPreset { id: string; name: string; hint: string; scenario: ScenarioInput }

@@ -8,6 +8,7 @@ import type pg from 'pg'
 import type { Piscina } from 'piscina'
 import { createTally, mergeRunTallies, summarize, TALLY_LENGTH, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
 import { ENGINE_VERSION } from '../../shared/optics/version'
+import { fresnelModeOf } from '../../shared/types/scenario'
 import { usePool } from '../utils/db'
 import { useBoss } from './boss'
 import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH, QUEUE_DEAD } from './config'
@@ -105,7 +106,7 @@ export async function commitBatch(cellId: string, batchIndex: number, tallies: R
     let finished = false
     let addedRays = 0
     if (remaining === 0) {
-      const result = summarize(stored, Number(cell.seed))
+      const result = summarize(stored, Number(cell.seed), fresnelModeOf(cell.scenario))
       const target = run.target_std_err as number | null
       const cap = run.ray_cap === null ? null : Number(run.ray_cap)
       if (target !== null && cap !== null && result.extractionStdErr > target && raysDone < cap) {

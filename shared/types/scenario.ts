@@ -346,3 +346,10 @@ export function parseScenario(data: unknown): { ok: true; scenario: Scenario } |
   const r = scenarioSchema.safeParse(data)
   return r.success ? { ok: true, scenario: r.data } : { ok: false, errors: scenarioErrorMessages(r.error, data) }
 }
+
+/** The Fresnel mode a stored (already parsed) scenario was traced with; undefined when it does not say. */
+export function fresnelModeOf(scenario: unknown): FresnelMode | undefined {
+  const mode = (scenario as { trace?: { fresnel?: unknown } } | null)?.trace?.fresnel
+  const parsed = fresnelModeSchema.safeParse(mode)
+  return parsed.success ? parsed.data : undefined
+}
