@@ -42,6 +42,8 @@ export function integrandAt(P: PreparedStack, opt: Required<ThinFilmOptics>, alp
   const wer = w[2 * e]!, wei = w[2 * e + 1]!
   const qer = wer / ne, qei = wei / ne
   const qe2 = qer * qer + qei * qei
+  // u = 1 exactly in the lossless emitting layer (q_e = 0) is a measure-zero point of an integrable singularity
+  if (qe2 === 0) { v.fill(0); return }
   // e^{2i k0 w_e z±}: phase and decay between the dipole plane and the layer's boundaries
   const em = Math.exp(-2 * wei * P.zm), ep = Math.exp(-2 * wei * P.zp)
   const pmr = em * Math.cos(2 * wer * P.zm), pmi = em * Math.sin(2 * wer * P.zm)
@@ -130,7 +132,12 @@ export interface RegionIntegrals {
  * difference overstates the true error by orders of magnitude on smooth pieces).
  */
 const TOL = 1e-9
-const MAX_DEPTH = 40
+/** Relative part of the tolerance: a mode peak (K ~ 1e5 over δu ~ 1e-6) needs 1e-7 of its own weight, not 1e-9
+ *  absolute, or every panel beside it would be split to rounding level. */
+const RTOL = 1e-7
+const MAX_DEPTH = 50
+/** A backstop against pathological stacks (no real stack comes near: the reference stack needs ~2e3). */
+const MAX_EVALUATIONS = 400_000
 
 export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>): RegionIntegrals {
   const ne = P.ne
@@ -152,6 +159,15 @@ export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>):
     }
   }
   const uMax = Math.cosh(tauMax)
+  // Mode poles: guided modes lie below the highest layer index, the surface plasmon a little above κ_sp; scan the
+  // non-radiating part of that range for minima of |1 − a₊a₋| per polarisation and make each a breakpoint.
+  let kTop = 0
+  for (const b of breaks) kTop = Math.max(kTop, b)
+  // (minima within 1e-6 of an existing breakpoint are the branch points themselves, e.g. u = 1, not modes)
+  const known = [...breaks]
+  for (const u of findPoles(P, Math.min(ug, 1), Math.min(uMax, kTop * 1.2))) {
+    if (known.every((b) => Math.abs(b - u) > 1e-6)) breaks.add(u)
+  }
   const pts = [...breaks].filter((b) => b >= 0 && b <= uMax).sort((a, b) => a - b)
   if (pts[pts.length - 1]! < uMax) pts.push(uMax)
   const r = [new Float64Array(NV), new Float64Array(NV), new Float64Array(NV)]
@@ -189,7 +205,8 @@ export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>):
         }
       }
       const err = h * (Math.abs(kr[0]! - gr[0]!) + Math.abs(kr[1]! - gr[1]!) + Math.abs(kr[2]! - gr[2]!) + Math.abs(kr[3]! - gr[3]!) + Math.abs(kr[5]! - gr[5]!))
-      if (err <= TOL || depth >= MAX_DEPTH) {
+      const mag = h * (Math.abs(kr[0]!) + Math.abs(kr[1]!) + Math.abs(kr[2]!))
+      if (err <= TOL + RTOL * mag || depth >= MAX_DEPTH || evaluations > MAX_EVALUATIONS) {
         for (let k = 0; k < NV; k++) acc[k] += h * kr[k]!
       } else {
         stack.push(a, c, depth + 1, c, b, depth + 1)
@@ -197,6 +214,54 @@ export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>):
     }
   }
   return { r, evaluations }
+}
+
+const den = new Float64Array(16)
+/** |1 − a₊a₋|² at u for one polarisation (the mode condition is a zero of it). */
+function denominator2(P: PreparedStack, u: number, p: boolean): number {
+  const e = P.e
+  setKappa(P, P.ne * u)
+  setAdmittance(P, p)
+  airy(P, 0, e, den, 0)
+  airy(P, P.M - 1, e, den, 4)
+  const wer = P.w[2 * e]!, wei = P.w[2 * e + 1]!
+  // a₊a₋ = r₊r₋ e^{2i k0 w_e (z₊ + z₋)}
+  const z = P.zm + P.zp
+  const a = Math.exp(-2 * wei * z)
+  const pr = a * Math.cos(2 * wer * z), pi = a * Math.sin(2 * wer * z)
+  const rr = den[0]! * den[4]! - den[1]! * den[5]!, ri = den[0]! * den[5]! + den[1]! * den[4]!
+  const xr = 1 - (rr * pr - ri * pi), xi = -(rr * pi + ri * pr)
+  return xr * xr + xi * xi
+}
+
+/** Grid spacing of the pole scan: 1/POLE_GRID of the range (modes closer than that are rare and still resolved
+ *  by bisection as long as one of them is a breakpoint). */
+const POLE_GRID = 400
+
+/** Local minima of |1 − a₊a₋| in (ua, ub), refined by golden section to ~1e-12 in u. */
+export function findPoles(P: PreparedStack, ua: number, ub: number): number[] {
+  const out: number[] = []
+  if (!(ub > ua)) return out
+  const h = (ub - ua) / POLE_GRID
+  for (const p of [false, true]) {
+    let f0 = denominator2(P, ua + 0.5 * h, p), f1 = denominator2(P, ua + 1.5 * h, p)
+    for (let i = 2; i < POLE_GRID; i++) {
+      const f2 = denominator2(P, ua + (i + 0.5) * h, p)
+      if (f1 < f0 && f1 <= f2) {
+        let a = ua + (i - 1.5) * h, b = ua + (i + 0.5) * h
+        const g = (Math.sqrt(5) - 1) / 2
+        let c = b - g * (b - a), d = a + g * (b - a)
+        let fc = denominator2(P, c, p), fd = denominator2(P, d, p)
+        while (b - a > 1e-12) {
+          if (fc < fd) { b = d; d = c; fd = fc; c = b - g * (b - a); fc = denominator2(P, c, p) }
+          else { a = c; c = d; fc = fd; d = a + g * (b - a); fd = denominator2(P, d, p) }
+        }
+        out.push(0.5 * (a + b))
+      }
+      f0 = f1; f1 = f2
+    }
+  }
+  return out
 }
 
 function fullOptics(o: ThinFilmOptics): Required<ThinFilmOptics> {

@@ -35,6 +35,13 @@ export interface PreparedStack {
   y: Float64Array
 }
 
+/**
+ * Im ε given to lossless non-emitting layers: 1e-6 (k ≈ 3e-7) lies far below any measured extinction of organics or
+ * oxides in the visible (k ≳ 1e-4, from memory), so it moves F and the mode split by ~1e-6, yet it gives each guided
+ * mode a width (δu ~ 1e-6) that the adaptive quadrature resolves once the pole is a breakpoint.
+ */
+export const LOSS_FLOOR = 1e-6
+
 export function prepareStack(tf: ThinFilm, glassIndex: number, wavelengthNm: number): PreparedStack {
   const N = tf.layers.length
   const M = N + 2
@@ -48,6 +55,9 @@ export function prepareStack(tf: ThinFilm, glassIndex: number, wavelengthNm: num
   for (let i = 0; i < N; i++) {
     const l = tf.layers[i]!
     set(i + 1, l.material.n, l.material.k)
+    // A lossless inner layer gets Im ε ≥ LOSS_FLOOR so guided modes (poles of 1/(1 − a₊a₋) on the real u axis,
+    // delta functions of finite weight) become Lorentzians of that weight that the quadrature can integrate.
+    if (!l.emitting && ei[i + 1]! < LOSS_FLOOR) ei[i + 1] = LOSS_FLOOR
     dk[i + 1] = k0 * l.thicknessNm
     if (l.emitting && e < 0) e = i + 1
   }
