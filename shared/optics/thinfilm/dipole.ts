@@ -200,14 +200,14 @@ export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>):
         const jx = jac(x, hyper)
         for (let k = 0; k < NV; k++) {
           const f = v[k]! * jx
-          kr[k] += wi * f
-          gr[k] += gi * f
+          kr[k] = kr[k]! + wi * f
+          gr[k] = gr[k]! + gi * f
         }
       }
       const err = h * (Math.abs(kr[0]! - gr[0]!) + Math.abs(kr[1]! - gr[1]!) + Math.abs(kr[2]! - gr[2]!) + Math.abs(kr[3]! - gr[3]!) + Math.abs(kr[5]! - gr[5]!))
       const mag = h * (Math.abs(kr[0]!) + Math.abs(kr[1]!) + Math.abs(kr[2]!))
       if (err <= TOL + RTOL * mag || depth >= MAX_DEPTH || evaluations > MAX_EVALUATIONS) {
-        for (let k = 0; k < NV; k++) acc[k] += h * kr[k]!
+        for (let k = 0; k < NV; k++) acc[k] = acc[k]! + h * kr[k]!
       } else {
         stack.push(a, c, depth + 1, c, b, depth + 1)
       }
@@ -295,7 +295,7 @@ export interface ThinFilmPoint {
 function assemble(tf: ThinFilm, P: PreparedStack, I: RegionIntegrals): ThinFilmPoint {
   const th = tf.horizontalDipoleFraction, q = tf.radiativeEfficiency
   const tot = new Float64Array(NV)
-  for (const reg of I.r) for (let k = 0; k < NV; k++) tot[k] += reg[k]!
+  for (const reg of I.r) for (let k = 0; k < NV; k++) tot[k] = tot[k]! + reg[k]!
   const mix = (a: Float64Array, h1: number, h2: number, vv: number) => th * (a[h1]! + a[h2]!) + (1 - th) * a[vv]!
   const F = mix(tot, V_K_TEH, V_K_TMH, V_K_TMV)
   const glassS = (th * tot[V_G_TEH]!) / F
