@@ -4,6 +4,7 @@
 // normal-incidence reflectance of an absorbing medium (Born & Wolf, Principles of Optics, §14.2) — and the schema.
 import { describe, expect, it } from 'vitest'
 import { thinFilmSchema, type ThinFilm, type ThinFilmInput } from '../../shared/types/thin-film'
+import { fresnelRp, fresnelRs } from '../../shared/optics/interfaces'
 import {
   glassAngular, integrandAt, prepareStack, stackReflectance, thinFilmAt, thinFilmCacheKey, thinFilmTable,
   V_G_TEH, V_G_TMH, V_G_TMV, V_K_TEH, V_K_TMH, V_K_TMV, V_T_TEH, V_T_TMH, V_T_TMV,
@@ -72,6 +73,15 @@ describe('energy closure in a lossless stack with a dielectric top', () => {
       expect(r.modes.waveguided).toBeGreaterThan(0.01)
     }
   })
+  it('guided modes of the lossless stack (delta functions) carry the k → 0 limit of a lossy stack: the waveguided share moves linearly in k (×10 in k ≈ ×10 in the shift) and by < 1e-3 at k = 1e-5', () => {
+    const withK = (k: number) => thinFilmAt(stack({ ...tf, layers: [layer(60, 1.85, k), layer(30, 1.7, 0, true), layer(45, 1.6, k)] }), 550, opt)
+    const a = thinFilmAt(tf, 550, opt), b = withK(1e-5), c = withK(1e-4)
+    const d1 = a.modes.waveguided - b.modes.waveguided, d2 = a.modes.waveguided - c.modes.waveguided
+    expect(Math.abs(d1)).toBeLessThan(1e-3)
+    expect(Math.abs(a.purcell.mixed - b.purcell.mixed)).toBeLessThan(1e-3)
+    expect(d2 / d1).toBeGreaterThan(7)
+    expect(d2 / d1).toBeLessThan(13)
+  })
   it('the same stack with an absorbing layer does absorb (the closure test can fail)', () => {
     const lossy = stack({ ...tf, layers: [layer(60, 1.85, 0.05), layer(30, 1.7, 0, true), layer(45, 1.6)] })
     expect(thinFilmAt(lossy, 550, opt).modes.absorbed).toBeGreaterThan(0.01)
@@ -131,6 +141,22 @@ describe('the glass angular table and the cache', () => {
     }
     expect(Math.abs(s - t.points[0]!.glassS)).toBeLessThan(1e-3)
     expect(Math.abs(p - t.points[0]!.glassP)).toBeLessThan(1e-3)
+  })
+  it('flat η_air from the u integral equals Σ_pol ∫ P_Ω·T_ga·A/(1 − R_stack·R_ga·A²) dΩ over the tabulated angles within 1e-3 (Fresnel from interfaces.ts)', () => {
+    const optics = { glassIndex: 1.5, glassThicknessUm: 700, glassAbsorptionPerMm: 0.5, outsideIndex: 1 }
+    const t = thinFilmTable(tf, [520], optics, 1441)
+    const A = t.glassAnglesRad.length, h = (Math.PI / 2) / (A - 1)
+    let air = 0
+    for (let i = 0; i < A; i++) {
+      const th = t.glassAnglesRad[i]!, c = Math.cos(th)
+      if (1.5 * Math.sin(th) >= 1) continue
+      const pass = Math.exp(-(0.5 / 1000) * 700 / c)
+      const rs = fresnelRs(c, 1.5, 1), rp = fresnelRp(c, 1.5, 1)
+      const f = (pz: number, rga: number, rst: number) => pz * (1 - rga) * pass / (1 - rst * rga * pass * pass)
+      air += (i === 0 ? 0.5 : 1) * h * 2 * Math.PI * Math.sin(th) * (f(t.glassS[i]!, rs, t.stackRs[i]!) + f(t.glassP[i]!, rp, t.stackRp[i]!))
+    }
+    expect(Math.abs(air - t.points[0]!.modes.air)).toBeLessThan(1e-3)
+    expect(t.points[0]!.modes.air).toBeLessThan(thinFilmAt(tf, 520, { glassIndex: 1.5 }).modes.air)
   })
   it('the mode split sums to 1; the same stack and grid hit the cache; a changed thickness changes the key', () => {
     const a = thinFilmTable(tf, [500, 550], { glassIndex: 1.5 })
