@@ -1,3 +1,4 @@
 export * from './scenario'
 export * from './geometry'
 export * from './result'
+export * from './thin-film'

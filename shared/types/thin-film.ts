@@ -1,0 +1,59 @@
+// The OLED's own layer stack as the emitter: the contract for a coherent thin-film source. Layers are listed from
+// the glass upward; thicknesses and the emitter position in nm; a material is a complex index n + ik at the
+// wavelength (constant over the spectrum for now). Not yet part of the scenario: the tracer takes it once
+// polarisation-tracked rays are in.
+import { z } from 'zod'
+
+/** Most layers between the glass and the cathode (the tabulation cost grows with it; real stacks have ≤ 15). */
+export const MAX_THIN_FILM_LAYERS = 30
+/** Thickest layer accepted: 10 µm. Beyond that a layer is no longer a coherent thin film at visible wavelengths. */
+export const MAX_THIN_FILM_LAYER_NM = 10_000
+
+export const opticalMaterialSchema = z.object({
+  n: z.number({ message: 'refractive index n must be a number' }).positive('refractive index n must be above 0').max(10, 'refractive index n must be at most 10'),
+  k: z.number({ message: 'extinction coefficient k must be a number' }).min(0, 'extinction coefficient k must not be negative (a negative k would be optical gain)').max(20, 'extinction coefficient k must be at most 20'),
+})
+
+export const thinFilmLayerSchema = z.object({
+  name: z.string().max(40).optional(),
+  thicknessNm: z
+    .number({ message: 'thicknessNm must be a number' })
+    .positive('thicknessNm must be above 0 nm')
+    .max(MAX_THIN_FILM_LAYER_NM, `thicknessNm must be at most ${MAX_THIN_FILM_LAYER_NM} nm (10 µm): a thicker layer is not a coherent thin film`),
+  material: opticalMaterialSchema,
+  emitting: z.boolean().optional(),
+})
+
+export const thinFilmSchema = z
+  .object({
+    layers: z
+      .array(thinFilmLayerSchema)
+      .min(1, 'the stack needs at least one layer (the emitting layer)')
+      .max(MAX_THIN_FILM_LAYERS, `at most ${MAX_THIN_FILM_LAYERS} layers between the glass and the cathode`),
+    cathode: z.object({ material: opticalMaterialSchema }),
+    emitterPositionNm: z.number({ message: 'emitterPositionNm must be a number' }).min(0, 'emitterPositionNm must not be negative: it is measured from the glass-side boundary of the emitting layer'),
+    horizontalDipoleFraction: z.number().min(0, 'horizontalDipoleFraction must be between 0 and 1').max(1, 'horizontalDipoleFraction must be between 0 and 1').default(2 / 3),
+    radiativeEfficiency: z.number().min(0, 'radiativeEfficiency must be between 0 and 1').max(1, 'radiativeEfficiency must be between 0 and 1').default(1),
+  })
+  .superRefine((tf, ctx) => {
+    const emitting = tf.layers.flatMap((l, i) => (l.emitting ? [i] : []))
+    if (emitting.length === 0) {
+      ctx.addIssue({ code: 'custom', path: ['layers'], message: 'no emitting layer: mark exactly one layer with "emitting": true' })
+      return
+    }
+    if (emitting.length > 1) {
+      ctx.addIssue({ code: 'custom', path: ['layers', emitting[1]!, 'emitting'], message: `two emitting layers (layers ${emitting.join(' and ')}): mark exactly one layer as emitting` })
+      return
+    }
+    const e = tf.layers[emitting[0]!]!
+    if (tf.emitterPositionNm > e.thicknessNm) {
+      ctx.addIssue({ code: 'custom', path: ['emitterPositionNm'], message: `the emitter position ${tf.emitterPositionNm} nm is outside the emitting layer${e.name ? ` ${e.name}` : ''} (thickness ${e.thicknessNm} nm): use 0 to ${e.thicknessNm} nm from its glass-side boundary` })
+    }
+    if (e.material.k > 0) {
+      ctx.addIssue({ code: 'custom', path: ['layers', emitting[0]!, 'material', 'k'], message: 'the emitting layer must be non-absorbing (k = 0): a dipole in an absorbing host has no finite emitted power to normalise to' })
+    }
+  })
+
+export type ThinFilm = z.infer<typeof thinFilmSchema>
+export type ThinFilmInput = z.input<typeof thinFilmSchema>
+export type OpticalMaterial = z.infer<typeof opticalMaterialSchema>
