@@ -39,6 +39,17 @@ export function linkFromLens(lattice: LatticeKind, pitchUm: number, diameterUm: 
 /** Recomputes the derived quantities from the given pair (pitch and lattice as set). */
 export function derive(s: LensLink): LensLink {
   const out: LensLink = { ...s, given: [...s.given] as [LensField, LensField], problem: null }
+  // an entry that is empty, not a number, zero or negative derives nothing: the others show as unknown
+  const bad = badEntry(out)
+  if (bad) {
+    out.problem = bad
+    for (const f of ['diameter', 'fill', 'sag', 'radius'] as const) {
+      if (!out.given.includes(f) && !(f === 'diameter' && out.given.includes('fill')) && !(f === 'fill' && out.given.includes('diameter'))) setField(out, f, NaN)
+    }
+    if (out.given.includes('diameter')) out.fillFactor = NaN
+    if (out.given.includes('fill')) out.diameterUm = NaN
+    return out
+  }
   const slots = new Set(out.given.map(slot))
   const fillGiven = out.given.includes('fill')
   if (slots.has('d')) {
@@ -68,6 +79,33 @@ export function derive(s: LensLink): LensLink {
     out.problem = `Diameter ${fmt(out.diameterUm)} µm is above the pitch ${fmt(out.pitchUm)} µm: caps would overlap.`
   }
   return out
+}
+
+const FIELD_WORDS: Record<LensField | 'pitch', [string, string]> = {
+  pitch: ['Pitch', ' µm'], diameter: ['Base diameter D', ' µm'], fill: ['Fill factor', ''], sag: ['Sag h', ' µm'], radius: ['Radius of curvature Rc', ' µm'],
+}
+
+function fieldValue(s: LensLink, f: LensField | 'pitch'): number {
+  return f === 'pitch' ? s.pitchUm : f === 'diameter' ? s.diameterUm : f === 'fill' ? s.fillFactor : f === 'sag' ? s.sagUm : s.radiusUm
+}
+
+function setField(s: LensLink, f: LensField, v: number) {
+  if (f === 'diameter') s.diameterUm = v
+  else if (f === 'fill') s.fillFactor = v
+  else if (f === 'sag') s.sagUm = v
+  else s.radiusUm = v
+}
+
+/** The first of pitch and the given pair that is not a number above 0, worded for the user; null if none. */
+function badEntry(s: LensLink): string | null {
+  for (const f of ['pitch', ...s.given] as const) {
+    const v = fieldValue(s, f)
+    const [name, unit] = FIELD_WORDS[f]
+    if (typeof v !== 'number' || Number.isNaN(v)) return `${name} is empty or not a number: enter a value above 0${unit}.`
+    if (!Number.isFinite(v)) return `${name} must be a finite number.`
+    if (v <= 0) return `${name} must be above 0${unit}: got ${fmt(v)}${unit}.`
+  }
+  return null
 }
 
 /** The user typed `value` into `field`: it becomes the newest given field and the rest follow. */
