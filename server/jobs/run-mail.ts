@@ -6,7 +6,7 @@ import { usePool } from '../utils/db'
 import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
 import { figureOf, type CellSummary } from './runs'
 
-const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance' }
+const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel' }
 
 export function formatWithSigma(value: number, sigma: number): string {
   // Digits to the σ's second significant figure (common practice for Monte Carlo figures).
