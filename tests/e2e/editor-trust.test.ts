@@ -164,6 +164,8 @@ describe('pixel source run page', () => {
     await page.locator('#run-rays').fill('20000')
     await Promise.all([page.waitForURL(/\/runs\//), page.getByTestId('run-start').click()])
     await page.locator('[data-testid=run-progress][data-status=done]').waitFor({ timeout: 120_000 })
+    // progress counts the user's rays (the engine traces each with its flat-device twin, 40,000 in all)
+    expect(await page.getByTestId('run-progress-rays').textContent()).toBe('20,000 of 20,000 rays traced')
     const pixel = await page.getByTestId('figure-pixel-on-axis').textContent({ timeout: 30_000 })
     expect(pixel).toMatch(/\d+\.\d+ ± \d+\.\d+ ×/)
     expect(await page.getByTestId('figure-enhancement').textContent()).toContain('Whole-film gain')
