@@ -42,6 +42,15 @@ describe('scenario schema', () => {
       'Sag h must be at most D/2 = 5 µm for a spherical cap: got 6 µm',
     ])
   })
+  it('rounds limits to 0.01 µm and names no internal field path', () => {
+    // D = 8.785558909884498 µm: D/2 = 4.392779454942249 µm, shown as 4.39 µm (common practice: 0.01 µm line precision)
+    const e = errors({ ...example, lensArray: { ...example.lensArray, diameterUm: 8.785558909884498, sagUm: 6 } })
+    expect(e).toEqual(['Sag h must be at most D/2 = 4.39 µm for a spherical cap: got 6 µm'])
+    const many = errors({ ...example, emitter: { index: 0.9, source: { shape: 'disc', radiusUm: -1 } }, substrate: { index: 1.5, thicknessUm: 0 } })
+    for (const m of many) expect(m).not.toMatch(/\b(emitter|substrate|lensArray|reflector|trace)\./)
+    expect(many).toContain('Source radius must be above 0 µm: got -1 µm')
+    expect(many).toContain('Substrate thickness must be above 0 µm: got 0 µm')
+  })
   it('reports every bad field by its name', () => {
     const e = errors({ ...example, emitter: { index: 0.9, source: { shape: 'disc' } }, reflector: { reflectance: 1.2 }, trace: { fresnel: 'magic', rays: 0 } })
     expect(e).toContain('Emitter index must be at least 1: got 0.9')
