@@ -12,6 +12,7 @@ export interface RunProgress {
   bestCell: { cellIndex: number; figure: string; value: number; stdErr: number } | null
   errors: Array<{ cellIndex: number; error: string }>
   runError?: string | null
+  startedAt?: string | null
   cells: ProgressCell[]
 }
 

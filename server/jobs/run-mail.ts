@@ -5,8 +5,9 @@
 import { usePool } from '../utils/db'
 import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
 import { figureOf, type CellSummary } from './runs'
+import { AXIS_PARAMETERS, type AxisParameter } from '../../shared/types/sweep'
 
-const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance' }
+const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel' }
 
 export function formatWithSigma(value: number, sigma: number): string {
   // Digits to the σ's second significant figure (common practice for Monte Carlo figures).
@@ -31,7 +32,12 @@ export async function sendRunFinishedMail(runId: string): Promise<boolean> {
   ]
   if (best) {
     const f = figureOf(best.summary as CellSummary, run.figure)
-    const axes = (run.axes as Array<{ parameter: string }>).map((a, i) => `${a.parameter} = ${(best.coordinates as number[])[i]}`).join(', ')
+    // in the editor's words and units, never internal field paths
+    const axes = (run.axes as Array<{ parameter: string }>).map((a, i) => {
+      const p = AXIS_PARAMETERS[a.parameter as AxisParameter]
+      const v = Number(((best.coordinates as number[])[i]!).toPrecision(4))
+      return p ? `${p.label.toLowerCase()} ${v}${p.unit ? ` ${p.unit}` : ''}` : `${a.parameter} ${v}`
+    }).join(', ')
     lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${f ? formatWithSigma(f.value, f.stdErr) : 'n/a'}.`)
   } else {
     lines.push('No cell finished, so there is no best cell; the sweep page lists each cell\'s reason.')

@@ -134,6 +134,9 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
   const axes = input.kind === 'sweep' ? (input.axes ?? []) : []
   if (input.kind === 'sweep') {
     const problems = axisProblems(base, axes)
+    if (input.figure === 'pixelOnAxisGain' && base.emitter.source.shape === 'extended') {
+      problems.push('Ranking by the pixel figure needs a disc or rectangle source; this design emits over the whole panel')
+    }
     if (problems.length) throw new RunRequestError(problems.join('; '), 400, problems)
   }
   const seed = input.seed ?? base.trace.seed
@@ -269,6 +272,8 @@ export function figureOf(summary: CellSummary | null, figure: string): { value: 
   switch (figure) {
     case 'extraction': return { value: summary.extraction, stdErr: summary.extractionStdErr }
     case 'onAxisLuminance': return { value: summary.onAxisLuminance, stdErr: summary.onAxisLuminanceStdErr }
+    case 'pixelOnAxisGain':
+      return summary.pixelOnAxisGain === null || summary.pixelOnAxisGain === undefined ? null : { value: summary.pixelOnAxisGain, stdErr: summary.pixelOnAxisGainStdErr ?? 0 }
     default: return { value: summary.enhancement, stdErr: summary.enhancementStdErr }
   }
 }
@@ -284,6 +289,9 @@ export interface CellSummary {
   onAxisLuminance: number
   onAxisLuminanceStdErr: number
   halfLuminanceAngleDeg: number | null
+  /** Finite-pixel sources only (else null; absent in summaries stored before it existed). */
+  pixelOnAxisGain?: number | null
+  pixelOnAxisGainStdErr?: number | null
   losses: Record<string, number>
   lossesStdErr: Record<string, number>
 }

@@ -40,6 +40,8 @@ export function cellSummary(r: ReturnType<typeof summarize>): CellSummary {
     onAxisLuminance: r.luminance.onAxisRelative,
     onAxisLuminanceStdErr: r.luminance.onAxisRelativeStdErr,
     halfLuminanceAngleDeg: r.luminance.halfLuminanceAngleDeg,
+    pixelOnAxisGain: r.pixel ? r.pixel.onAxisEnhancement : null,
+    pixelOnAxisGainStdErr: r.pixel ? r.pixel.onAxisEnhancementStdErr : null,
     losses: r.losses,
     lossesStdErr: r.lossesStdErr,
   }

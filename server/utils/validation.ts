@@ -4,14 +4,14 @@ import { createError } from 'h3'
 import type { z } from 'zod'
 import { scenarioErrorMessages } from '../../shared/types/scenario'
 
-/** One sentence per issue, naming the field. Issues inside a body's `scenario` use the engine's wording. */
+/** One sentence per issue, naming the field. Issues inside a body's `scenario` use the editor's trade wording. */
 export function describeIssues(error: z.ZodError, input?: unknown): string {
   return error.issues
     .map((issue) => {
       if (issue.path[0] === 'scenario' && input && typeof input === 'object') {
         const inner = { ...issue, path: issue.path.slice(1) }
         const [msg] = scenarioErrorMessages({ issues: [inner] } as unknown as z.ZodError, (input as { scenario?: unknown }).scenario)
-        return `scenario${inner.path.length ? (typeof inner.path[0] === 'number' ? '' : '.') : ''}${msg!.replace(/^scenario\b/, '')}`
+        return msg!
       }
       const path = issue.path.map(String).join('.')
       // Our schemas usually name the field in the message already; only prefix it when they do not.

@@ -15,7 +15,7 @@ const profileTableSchema = z
   .superRefine((rows, ctx) => {
     for (let i = 1; i < rows.length; i++) {
       if (!(rows[i]![0] > rows[i - 1]![0])) {
-        ctx.addIssue({ code: 'custom', path: [i, 0], message: `thetaDeg must increase row by row: got ${rows[i]![0]} after ${rows[i - 1]![0]}` })
+        ctx.addIssue({ code: 'custom', path: [i, 0], message: `θ must increase row by row: got ${rows[i]![0]}° after ${rows[i - 1]![0]}°` })
         return
       }
     }
@@ -178,14 +178,14 @@ const lensProfileSchema = z
   .min(3)
   .max(MAX_PROFILE_ROWS)
   .superRefine((rows, ctx) => {
-    if (rows[0]![0] !== 0) ctx.addIssue({ code: 'custom', path: [0, 0], message: `must start at the lens centre, rhoUm 0: got ${rows[0]![0]}` })
+    if (rows[0]![0] !== 0) ctx.addIssue({ code: 'custom', path: [0, 0], message: `must start at the lens centre (ρ = 0): got ρ = ${rows[0]![0]} µm` })
     for (let i = 1; i < rows.length; i++) {
       if (!(rows[i]![0] > rows[i - 1]![0])) {
-        ctx.addIssue({ code: 'custom', path: [i, 0], message: `rhoUm must increase row by row: got ${rows[i]![0]} after ${rows[i - 1]![0]}` })
+        ctx.addIssue({ code: 'custom', path: [i, 0], message: `ρ must increase row by row: got ${rows[i]![0]} µm after ${rows[i - 1]![0]} µm` })
         return
       }
       if (rows[i]![1] > rows[i - 1]![1]) {
-        ctx.addIssue({ code: 'custom', path: [i, 1], message: `heightUm must not rise towards the rim: got ${rows[i]![1]} after ${rows[i - 1]![1]}` })
+        ctx.addIssue({ code: 'custom', path: [i, 1], message: `height must not rise towards the rim: got ${rows[i]![1]} µm after ${rows[i - 1]![1]} µm` })
         return
       }
     }
@@ -208,29 +208,29 @@ export const lensArraySchema = z
   })
   .superRefine((l, ctx) => {
     if (l.diameterUm > l.pitchUm) {
-      ctx.addIssue({ code: 'custom', path: ['diameterUm'], message: `must be at most pitchUm (caps may touch, not overlap): got ${l.diameterUm}, max ${l.pitchUm}` })
+      ctx.addIssue({ code: 'custom', path: ['diameterUm'], message: `must be at most the pitch p = ${um(l.pitchUm)} (caps may touch, not overlap): got ${um(l.diameterUm)}` })
     }
     const a = l.diameterUm / 2
     if (l.shape === 'spherical' && l.sagUm > a) {
-      ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2 for a spherical cap: got ${l.sagUm}, max ${a}` })
+      ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most D/2 = ${um(a)} for a spherical cap: got ${um(l.sagUm)}` })
     }
     if (l.shape === 'measured' && l.profile === undefined) {
-      ctx.addIssue({ code: 'custom', path: ['profile'], message: 'is required when shape is "measured" (upload a lens profile table)' })
+      ctx.addIssue({ code: 'custom', path: ['profile'], message: 'is required for a measured cap: pick an uploaded lens profile' })
     }
     if (l.shape === 'conic') {
       if (l.conicConstant === undefined) {
-        ctx.addIssue({ code: 'custom', path: ['conicConstant'], message: 'is required when shape is "conic"' })
+        ctx.addIssue({ code: 'custom', path: ['conicConstant'], message: 'is required for a conic cap' })
       } else if (l.conicConstant > -1) {
         // The cap must lie on the lower branch of the conic: (1+k)·h² ≤ a² (see shared/types/geometry.ts).
         const maxSag = a / Math.sqrt(1 + l.conicConstant)
         if (l.sagUm > maxSag) {
-          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most diameterUm/2/√(1+conicConstant) for this conic cap: got ${l.sagUm}, max ${round4(maxSag)}` })
+          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most D/2/√(1+k) = ${um(maxSag)} for this conic cap: got ${um(l.sagUm)}` })
         }
       } else if (l.conicConstant < -1) {
         // Finite vertex curvature needs a² + (1+k)h² > 0; keep 0.1 % away from the cone limit.
         const maxSag = 0.999 * a / Math.sqrt(-1 - l.conicConstant)
         if (l.sagUm > maxSag) {
-          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most 0.999·diameterUm/2/√(−1−conicConstant) for this hyperboloid cap: got ${l.sagUm}, max ${round4(maxSag)}` })
+          ctx.addIssue({ code: 'custom', path: ['sagUm'], message: `must be at most 0.999·D/2/√(−1−k) = ${um(maxSag)} for this hyperboloid cap: got ${um(l.sagUm)}` })
         }
       }
     }
@@ -287,6 +287,59 @@ function round4(x: number): number {
   return Number(x.toPrecision(4))
 }
 
+/** A length as shown to a user: to 0.01 µm (the precision a mastering line can make), 3 significant figures below. */
+function um(x: number): string {
+  return `${Math.abs(x) >= 0.01 ? Number(x.toFixed(2)) : Number(x.toPrecision(3))} µm`
+}
+
+/** The editor's names and units of the scenario fields, so messages use the trade's words, not field paths. */
+const FIELD_WORDS: Record<string, [string, string]> = {
+  'emitter.index': ['Emitter index', ''],
+  'emitter.angularProfile': ['Emission profile', ''],
+  'emitter.angularProfile.table': ['Emission profile table', ''],
+  'emitter.source': ['Source area', ''],
+  'emitter.source.shape': ['Source area', ''],
+  'emitter.source.radiusUm': ['Source radius', 'µm'],
+  'emitter.source.widthUm': ['Pixel width', 'µm'],
+  'emitter.source.heightUm': ['Pixel height', 'µm'],
+  'reflector.reflectance': ['Back reflectance', ''],
+  'reflector.diffuseFraction': ['Diffuse share of reflection', ''],
+  'substrate.index': ['Substrate index', ''],
+  'substrate.thicknessUm': ['Substrate thickness', 'µm'],
+  'substrate.absorptionPerMm': ['Substrate absorption', '1/mm'],
+  'lensArray.lattice': ['Lattice', ''],
+  'lensArray.pitchUm': ['Pitch', 'µm'],
+  'lensArray.diameterUm': ['Base diameter D', 'µm'],
+  'lensArray.sagUm': ['Sag h', 'µm'],
+  'lensArray.shape': ['Cap profile', ''],
+  'lensArray.conicConstant': ['Conic constant k', ''],
+  'lensArray.profile': ['Measured profile', ''],
+  'lensArray.index': ['Lens index', ''],
+  'trace.rays': ['Rays', ''],
+  'trace.seed': ['Seed', ''],
+  'trace.fresnel': ['Fresnel mode', ''],
+  'trace.maxEvents': ['Event limit per ray', ''],
+}
+
+/** Field name (and unit) for a path; inside a table (profile rows) the table's name and the row. */
+function fieldWords(path: ReadonlyArray<PropertyKey>): [string, string] {
+  for (let n = path.length; n > 0; n--) {
+    const key = path.slice(0, n).map(String).join('.')
+    const w = FIELD_WORDS[key]
+    if (w) {
+      if (n === path.length) return w
+      const row = path[n]
+      return typeof row === 'number' ? [`${w[0]} row ${row + 1}`, ''] : [w[0], '']
+    }
+  }
+  return [pathText(path), '']
+}
+
+function valueText(v: unknown, unit: string): string {
+  if (typeof v === 'number') return Number.isFinite(v) ? `${round4(v)}${unit ? ` ${unit}` : ''}` : 'not a number'
+  return JSON.stringify(v)
+}
+
 function valueAt(data: unknown, path: ReadonlyArray<PropertyKey>): unknown {
   let v: unknown = data
   for (const k of path) {
@@ -303,33 +356,36 @@ function pathText(path: ReadonlyArray<PropertyKey>): string {
 }
 
 /**
- * Turns a zod error into one message per issue, each naming the field path and the allowed range, e.g.
- * "lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5".
- * `data` is the raw input (used to quote the offending value).
+ * Turns a zod error into one message per issue in the trade's words, with the allowed range and the value given,
+ * numbers rounded, e.g. "Sag h must be at most D/2 = 5 µm for a spherical cap: got 6 µm". `data` is the raw input
+ * (used to quote the offending value). The editor, the HTTP API, the CLI and sweep cells all say the same thing.
  */
 export function scenarioErrorMessages(error: z.ZodError, data?: unknown): string[] {
   return error.issues.map((iss) => {
-    const where = pathText(iss.path)
+    const [where, unit] = fieldWords(iss.path)
+    const u = unit ? ` ${unit}` : ''
     const got = valueAt(data, iss.path)
-    const gotText = got === undefined ? '' : `: got ${JSON.stringify(got)}`
+    const gotText = got === undefined ? '' : `: got ${valueText(got, unit)}`
     switch (iss.code) {
       case 'too_small': {
         const min = Number(iss.minimum)
-        if (iss.origin === 'array') return `${where} must have at least ${min} entries${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
-        return `${where} must be ${iss.inclusive ? 'at least' : 'greater than'} ${min}${gotText}`
+        if (iss.origin === 'array') return `${where} must have at least ${min} points${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
+        return `${where} must be ${iss.inclusive ? 'at least' : 'above'} ${min}${u}${gotText}`
       }
       case 'too_big': {
         const max = Number(iss.maximum)
-        if (iss.origin === 'array') return `${where} must have at most ${max} entries`
-        return `${where} must be ${iss.inclusive ? 'at most' : 'less than'} ${max}${gotText}`
+        if (iss.origin === 'array') return `${where} must have at most ${max} points`
+        return `${where} must be ${iss.inclusive ? 'at most' : 'below'} ${max}${u}${gotText}`
       }
       case 'invalid_type':
-        return got === undefined ? `${where} is required (${iss.expected})` : `${where} must be ${iss.expected}${gotText}`
+        if (got === undefined) return `${where} is required`
+        if (got === null || (typeof got === 'number' && !Number.isFinite(got))) return `${where} is empty or not a number: enter a value${unit ? ` in ${unit}` : ''}`
+        return `${where} must be a ${iss.expected}${gotText}`
       case 'invalid_value':
         return `${where} must be one of ${iss.values.map((v) => JSON.stringify(v)).join(', ')}${gotText}`
       case 'invalid_union':
-        if (where.endsWith('source')) return `${where}.shape must be one of "extended", "disc" {radiusUm}, "rectangle" {widthUm, heightUm}${gotText}`
-        if (where.endsWith('angularProfile')) return `${where} must be "isotropic", "lambertian" or { table: [[thetaDeg, relIntensity], ...] }${gotText}`
+        if (iss.path[iss.path.length - 1] === 'source') return `${where} must be extended, a disc (radius) or a rectangle (width, height)${gotText}`
+        if (iss.path[iss.path.length - 1] === 'angularProfile') return `${where} must be isotropic, Lambertian or a table of (θ in °, relative intensity) rows${gotText}`
         return `${where} is not valid: ${iss.message}${gotText}`
       case 'unrecognized_keys':
         return `${where} has unknown field(s): ${iss.keys.join(', ')}`

@@ -60,8 +60,11 @@ export const sweepAxisSchema = z
 
 export type SweepAxis = z.infer<typeof sweepAxisSchema>
 
-/** Figures a sweep can rank its cells by. */
-export const figureSchema = z.enum(['extraction', 'enhancement', 'onAxisLuminance'])
+/**
+ * Figures a sweep can rank its cells by. pixelOnAxisGain: on-axis light over the pixel against the flat device (disc or
+ * rectangle sources only).
+ */
+export const figureSchema = z.enum(['extraction', 'enhancement', 'onAxisLuminance', 'pixelOnAxisGain'])
 export type Figure = z.infer<typeof figureSchema>
 
 /**

@@ -285,7 +285,7 @@ describe('who may start, see and stream runs', () => {
     expect(unknown.body.message).toContain('axes.0.parameter')
     const noCells = await t.client.post('/api/sweeps', { designId: t.design.id, axes: [{ parameter: 'lensArray.sagUm', values: [6, 7] }] })
     expect(noCells.status).toBe(400)
-    expect(noCells.body.message).toMatch(/No cell of this sweep can be built: .*lensArray.sagUm must be at most diameterUm\/2/)
+    expect(noCells.body.message).toMatch(/No cell of this sweep can be built: .*Sag h must be at most D\/2/)
     const tooMany = await t.client.post('/api/runs', { designId: t.design.id, precision: { rays: 900_000_000 } })
     expect(tooMany.status).toBe(429)
     expect(tooMany.body.message).toMatch(/limit is/)

@@ -55,6 +55,9 @@ describe('sweep finished mail', () => {
     expect(run.best_cell_index).not.toBeNull()
     expect(mail.text).toContain(`Best cell by enhancement: cell ${run.best_cell_index}`)
     expect(mail.text).toMatch(/enhancement \d+\.\d+ ± \d+\.\d+/)
+    // the cell named in the editor's words and units, never by internal field paths
+    expect(mail.text).toMatch(/\(sag [\d.]+ µm\)/)
+    expect(mail.text).not.toMatch(/lensArray\.|emitter\.|substrate\.|reflector\./)
     expect(linkIn(mail, '/sweeps/')).toBe(`${baseUrl}/sweeps/${sweepId}`)
     // Exactly one mail for the sweep although two cells finished.
     const { rows: [n] } = await pool.query(`SELECT count(*)::int AS n FROM mailbox_messages WHERE subject LIKE $1 AND rcpt_to ? $2`, ['%Sag pair%', designerEmail])

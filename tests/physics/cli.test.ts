@@ -53,7 +53,7 @@ describe('simulate CLI', () => {
     writeFileSync(`${dir}/broken.json`, '{ "emitter": ')
     const r1 = run([`${dir}/sag.json`])
     expect(r1.status).toBe(2)
-    expect(r1.stderr).toContain('lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5')
+    expect(r1.stderr).toContain('Sag h must be at most D/2 = 5 µm for a spherical cap: got 6 µm')
     const r2 = run([`${dir}/broken.json`])
     expect(r2.status).toBe(2)
     expect(r2.stderr).toContain('is not valid JSON')

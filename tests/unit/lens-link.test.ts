@@ -106,4 +106,24 @@ describe('linked lens inputs', () => {
       },
     ))
   })
+
+  it('negative, zero or empty (NaN) entries derive nothing and are named; the value typed is kept', () => {
+    const base = linkFromLens('hexagonal', 10, 10, 5)
+    const neg = editLens(base, 'sag', -2)
+    expect(neg.sagUm).toBe(-2)
+    expect(Number.isNaN(neg.radiusUm)).toBe(true)
+    expect(neg.problem).toBe('Sag h must be above 0 µm: got -2 µm.')
+    const zero = editLens(base, 'sag', 0)
+    expect(zero.problem).toBe('Sag h must be above 0 µm: got 0 µm.')
+    const d = editLens(base, 'diameter', -5)
+    expect(d.diameterUm).toBe(-5)
+    expect(Number.isNaN(d.fillFactor)).toBe(true)
+    expect(d.problem).toMatch(/^Base diameter D must be above 0 µm/)
+    const empty = editLens(base, 'radius', NaN)
+    expect(empty.problem).toMatch(/^Radius of curvature Rc is empty or not a number/)
+    expect(Number.isNaN(empty.diameterUm)).toBe(true) // Rc and h given: D follows from nothing
+    expect(editLens(base, 'pitch', 0).problem).toMatch(/^Pitch must be above 0 µm/)
+    // fixing the entry brings the derived values back (hemisphere: Rc = r)
+    expect(editLens(neg, 'sag', 5)).toMatchObject({ problem: null, radiusUm: 5 })
+  })
 })

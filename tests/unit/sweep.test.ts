@@ -90,7 +90,7 @@ describe('sweep expansion', () => {
     if (!tooSmall.feasible) expect(tooSmall.reason).toMatch(/below half the diameter \(5 µm\)/)
     const deep = expandSweep(base, [{ parameter: 'lensArray.sagUm', values: [6] }])[0]!
     expect(deep.feasible).toBe(false)
-    if (!deep.feasible) expect(deep.reason).toMatch(/lensArray.sagUm must be at most diameterUm\/2/)
+    if (!deep.feasible) expect(deep.reason).toMatch(/Sag h must be at most D\/2/)
   })
 })
 

@@ -32,7 +32,7 @@ describe('zodValidator', () => {
     expect(err.message).toMatch(/^pitch: /)
   })
 
-  it('words scenario issues with their full path inside the body', () => {
+  it('words scenario issues as the design editor does (field name, rounded limit, unit)', () => {
     const err = errorOf(() => zodValidator(designCreateSchema)({
       name: 'x',
       scenario: {
@@ -42,6 +42,6 @@ describe('zodValidator', () => {
         lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 6 },
       },
     }))
-    expect(err.message).toBe('scenario.lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5')
+    expect(err.message).toBe('Sag h must be at most D/2 = 5 µm for a spherical cap: got 6 µm')
   })
 })

@@ -37,25 +37,34 @@ describe('scenario schema', () => {
   it('lensArray null is the planar device', () => {
     expect(scenarioSchema.parse({ ...example, lensArray: null }).lensArray).toBeNull()
   })
-  it('names the field and the range: the issue\'s sag message', () => {
+  it('names the field in the editor\'s words with the rounded limit and unit', () => {
     expect(errors({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } })).toEqual([
-      'lensArray.sagUm must be at most diameterUm/2 for a spherical cap: got 6, max 5',
+      'Sag h must be at most D/2 = 5 µm for a spherical cap: got 6 µm',
     ])
   })
-  it('reports every bad field with its path', () => {
+  it('rounds limits to 0.01 µm and names no internal field path', () => {
+    // D = 8.785558909884498 µm: D/2 = 4.392779454942249 µm, shown as 4.39 µm (common practice: 0.01 µm line precision)
+    const e = errors({ ...example, lensArray: { ...example.lensArray, diameterUm: 8.785558909884498, sagUm: 6 } })
+    expect(e).toEqual(['Sag h must be at most D/2 = 4.39 µm for a spherical cap: got 6 µm'])
+    const many = errors({ ...example, emitter: { index: 0.9, source: { shape: 'disc', radiusUm: -1 } }, substrate: { index: 1.5, thicknessUm: 0 } })
+    for (const m of many) expect(m).not.toMatch(/\b(emitter|substrate|lensArray|reflector|trace)\./)
+    expect(many).toContain('Source radius must be above 0 µm: got -1 µm')
+    expect(many).toContain('Substrate thickness must be above 0 µm: got 0 µm')
+  })
+  it('reports every bad field by its name', () => {
     const e = errors({ ...example, emitter: { index: 0.9, source: { shape: 'disc' } }, reflector: { reflectance: 1.2 }, trace: { fresnel: 'magic', rays: 0 } })
-    expect(e).toContain('emitter.index must be at least 1: got 0.9')
-    expect(e).toContain('emitter.source.radiusUm is required (number)')
-    expect(e).toContain('reflector.reflectance must be at most 1: got 1.2')
-    expect(e).toContain('trace.rays must be at least 1: got 0')
-    expect(e.some((m) => m.startsWith('trace.fresnel must be one of "averaged", "none"'))).toBe(true)
+    expect(e).toContain('Emitter index must be at least 1: got 0.9')
+    expect(e).toContain('Source radius is required')
+    expect(e).toContain('Back reflectance must be at most 1: got 1.2')
+    expect(e).toContain('Rays must be at least 1: got 0')
+    expect(e.some((m) => m.startsWith('Fresnel mode must be one of "averaged", "none"'))).toBe(true)
   })
   it('diameter above pitch, a conic without its constant, a bad profile table', () => {
     expect(errors({ ...example, lensArray: { ...example.lensArray, diameterUm: 11, sagUm: 2 } })).toEqual([
-      'lensArray.diameterUm must be at most pitchUm (caps may touch, not overlap): got 11, max 10',
+      'Base diameter D must be at most the pitch p = 10 µm (caps may touch, not overlap): got 11 µm',
     ])
-    expect(errors({ ...example, lensArray: { ...example.lensArray, shape: 'conic' } })).toEqual(['lensArray.conicConstant is required when shape is "conic"'])
-    expect(errors({ ...example, emitter: { ...example.emitter, angularProfile: { table: [[0, 1], [0, 2]] } } })[0]).toMatch(/^emitter\.angularProfile\.table\[1\]\[0\] thetaDeg must increase/)
+    expect(errors({ ...example, lensArray: { ...example.lensArray, shape: 'conic' } })).toEqual(['Conic constant k is required for a conic cap'])
+    expect(errors({ ...example, emitter: { ...example.emitter, angularProfile: { table: [[0, 1], [0, 2]] } } })[0]).toMatch(/^Emission profile table row 2 θ must increase/)
   })
   it('accepts source shapes and profiles of every kind', () => {
     for (const source of [{ shape: 'disc', radiusUm: 1 }, { shape: 'rectangle', widthUm: 3, heightUm: 4 }]) {
