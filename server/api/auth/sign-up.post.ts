@@ -1,7 +1,7 @@
 // Creates an account, its own team (the new user is its lead) and a session.
 import { signUpSchema } from '../../../shared/types/account'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(signUpSchema))
   const { userId, teamId } = await signUpAccount(useDb(), body)
   await startSession(event, userId)

@@ -3,7 +3,7 @@ import { z } from 'zod'
 
 const querySchema = z.object({ limit: z.coerce.number().int().min(1).max(500).default(100) })
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   requireMailboxMode(event)
   const { limit } = await getValidatedQuery(event, zodValidator(querySchema))
   return { messages: await listMailbox(limit) }

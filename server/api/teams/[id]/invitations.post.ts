@@ -2,7 +2,7 @@
 import { idParamSchema } from '../../../../shared/types/project'
 import { invitationCreateSchema } from '../../../../shared/types/team'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const body = await readValidatedBody(event, zodValidator(invitationCreateSchema))
   const { user } = await requireTeamRole(event, id, ['lead'], 'inviting people')
