@@ -2,7 +2,7 @@
 // statuses the API documents: a unique violation (SQLSTATE 23505) becomes 409 with a sentence naming what is taken,
 // a lost or refused connection becomes 503. Drizzle 0.45 wraps the driver's error (the code sits on `.cause`), and
 // other layers wrap again, so the whole cause chain is searched. Helpers below build the common refusals.
-import { createError, defineEventHandler, isError, type EventHandler, type EventHandlerRequest, type H3Error } from 'h3'
+import { createError, defineEventHandler, isError, type EventHandler, type EventHandlerRequest, type H3Error, type H3Event } from 'h3'
 import { databaseUnavailableError, isDatabaseUnavailable } from './unavailable'
 
 const UNIQUE_VIOLATION = '23505'
@@ -70,13 +70,25 @@ export function toApiError(err: unknown): unknown {
   return err
 }
 
+/**
+ * A request whose client went away (closed the socket, or was cut off by the server's request timeout) while its
+ * body was being read: one log line and a handled 400, instead of an unhandled error with its stack.
+ */
+function clientAborted(event: H3Event, err: unknown): H3Error | undefined {
+  const e = err as { code?: string; message?: string }
+  const gone = event.node.req.destroyed || (e?.code === 'ECONNRESET' && /aborted/i.test(e.message ?? ''))
+  if (!gone || (isError(err) && (err as H3Error).statusCode < 500)) return undefined
+  console.warn(`[request aborted] ${event.method} ${event.path.split('?')[0]}: the client closed the connection before the request was complete`)
+  return createError({ statusCode: 400, statusMessage: 'Bad Request', message: 'The request was cut off before it was complete; send it again.' })
+}
+
 /** `defineEventHandler` with the database's errors mapped (see the top of this file). Use it for every route. */
 export function defineApiHandler<Req extends EventHandlerRequest, Res>(handler: EventHandler<Req, Res>): EventHandler<Req, Res> {
   return defineEventHandler<Req>(async (event) => {
     try {
       return await handler(event)
     } catch (err) {
-      throw toApiError(err)
+      throw clientAborted(event, err) ?? toApiError(err)
     }
   }) as EventHandler<Req, Res>
 }
