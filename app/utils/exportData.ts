@@ -1,6 +1,6 @@
 // Client-side export: CSV text from rows (shared/utils/csv-cell.ts: text quoted, formula starts neutralised) and a
 // download of a string or data URL.
-import { csvRow, type CsvValue } from '../../shared/utils/csv-cell'
+import { csvRow, type CsvValue } from '#shared/utils/csv-cell'
 
 export function toCsv(header: string[], rows: CsvValue[][]): string {
   return [header, ...rows].map(csvRow).join('\r\n') + '\r\n'
