@@ -76,7 +76,9 @@ export function toApiError(err: unknown): unknown {
  */
 function clientAborted(event: H3Event, err: unknown): H3Error | undefined {
   const e = err as { code?: string; message?: string }
-  const gone = event.node.req.destroyed || (e?.code === 'ECONNRESET' && /aborted/i.test(e.message ?? ''))
+  // Not req.destroyed: Node destroys a request stream once its body has been read, aborted or not.
+  const req = event.node.req as typeof event.node.req & { aborted?: boolean }
+  const gone = req.aborted === true || req.socket?.destroyed === true || (e?.code === 'ECONNRESET' && /aborted/i.test(e.message ?? ''))
   if (!gone || (isError(err) && (err as H3Error).statusCode < 500)) return undefined
   console.warn(`[request aborted] ${event.method} ${event.path.split('?')[0]}: the client closed the connection before the request was complete`)
   return createError({ statusCode: 400, statusMessage: 'Bad Request', message: 'The request was cut off before it was complete; send it again.' })
