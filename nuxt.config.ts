@@ -1,3 +1,4 @@
+import { fileURLToPath } from 'node:url'
 // Lensfield: Nuxt 4 configuration, set up by hand.
 // The Tailwind theme lives here (no tailwind.config at the top level): Lensfield's own palette and type scale.
 export default defineNuxtConfig({
@@ -24,6 +25,10 @@ export default defineNuxtConfig({
         await buildTraceWorker(`${nitro.options.output.serverDir}/workers/trace.mjs`)
       },
     },
+  },
+  // Production builds use Nitro's node-server entry with connection limits added (server/entry/node-server.ts).
+  $production: {
+    nitro: { entry: fileURLToPath(new URL('./server/entry/node-server.ts', import.meta.url)) },
   },
   runtimeConfig: {
     // NUXT_PUBLIC_DEMO_MODE=true (set by npm start / npm run dev) lists the demo accounts on the sign-in page.

@@ -1,5 +1,8 @@
-// `npm start`: Postgres on loopback → migrations → demo data → production build → node .output/server/index.mjs.
-// Prints the URL and the demo accounts. Ctrl-C (or SIGTERM) stops the app and the database server it started.
+// `npm start`: Postgres on loopback → migrations → production build → node .output/server/index.mjs.
+// Demo mode is explicit: `npm run demo` (= `npm start -- --demo`, or LENSFIELD_DEMO=1) also loads the demo data,
+// lists the demo accounts on the sign-in page and opens the development mailbox; it prints a warning, because
+// anyone who can reach the port can then sign in with the published demo passwords.
+// Ctrl-C (or SIGTERM) stops the app and the database server it started.
 import pg from 'pg'
 import { join } from 'node:path'
 import { ensurePostgres, freePort, migrateDatabase, portIsFree, repoRoot, stopOnExit } from './postgres'
@@ -9,6 +12,7 @@ import { dbFromPool } from '../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../server/utils/demo'
 import type { ChildProcess } from 'node:child_process'
 
+const demo = process.argv.includes('--demo') || process.env.LENSFIELD_DEMO === '1'
 let app: ChildProcess | undefined
 let mailbox: FakeSmtp | undefined
 const db = await ensurePostgres({ database: 'lensfield' })
@@ -19,10 +23,12 @@ stopOnExit(() => {
 })
 
 await migrateDatabase(db.url)
-const pool = new pg.Pool({ connectionString: db.url, max: 2 })
-await loadDemoData(dbFromPool(pool))
-await pool.end()
-console.log('[demo] demo data loaded')
+if (demo) {
+  const pool = new pg.Pool({ connectionString: db.url, max: 2 })
+  await loadDemoData(dbFromPool(pool))
+  await pool.end()
+  console.log('[demo] demo data loaded')
+}
 
 // Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.
 if (!process.env.LENSFIELD_SMTP_HOST) mailbox = await startFakeSmtp(db.url)
@@ -38,7 +44,7 @@ app = startChild(process.execPath, [join(repoRoot, '.output', 'server', 'index.m
   HOST: host,
   PORT: String(port),
   NODE_ENV: 'production',
-  NUXT_PUBLIC_DEMO_MODE: 'true',
+  NUXT_PUBLIC_DEMO_MODE: demo ? 'true' : 'false',
   ...mailbox?.env,
   LENSFIELD_PUBLIC_URL: process.env.LENSFIELD_PUBLIC_URL ?? `http://${host.includes(':') ? `[${host}]` : host}:${port}`,
 })
@@ -49,11 +55,22 @@ app.on('exit', (code, signal) => {
 
 const url = `http://${host.includes(':') ? `[${host}]` : host}:${port}`
 await waitForHttp(`${url}/api/health`)
-console.log(`
-Lensfield is running at ${url}
+if (demo) {
+  console.log(`
+Lensfield is running at ${url} in DEMO MODE
+
+WARNING: demo mode is for trying Lensfield on your own machine. The demo accounts below have published passwords
+and the sign-in page lists them; do not expose this port to other people. Start without --demo for real use.
 
 Demo accounts (team "Tallowby Luminous Panels"):
 ${DEMO_USERS.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(34)} password: ${u.password}`).join('\n')}
 
-${mailbox ? `Mail is captured (nothing is delivered): ${url}/dev/mailbox\n\n` : ''}Press Ctrl-C to stop the app and its database server.
+${mailbox ? `Mail is captured (nothing is delivered); signed in, read your own at ${url}/dev/mailbox\n\n` : ''}Press Ctrl-C to stop the app and its database server.
 `)
+} else {
+  console.log(`
+Lensfield is running at ${url}
+
+${mailbox ? 'No mail server is configured (LENSFIELD_SMTP_HOST): mail is captured locally and not delivered.\n\n' : ''}Press Ctrl-C to stop the app and its database server. (\`npm run demo\` starts it with the demo data.)
+`)
+}

@@ -1,6 +1,7 @@
 // Every page but sign-in/sign-up needs a session; signed-in users skip the sign-in pages.
 const PUBLIC_PAGES = new Set(['/sign-in', '/sign-up'])
-// Reachable signed in or out: links from mails, and the development mailbox that shows them.
+// Reachable signed in or out: links from mails, and the development mailbox (its page sends a signed-out reader
+// to sign in once the API says demo mode is on; outside demo mode it is a 404 for everyone).
 const OPEN_PREFIXES = ['/invitations/', '/reset-password', '/dev/mailbox']
 
 export default defineNuxtRouteMiddleware(async (to) => {

@@ -1,12 +1,9 @@
-// Client-side export: CSV text from rows (RFC 4180 quoting) and a download of a string or data URL.
+// Client-side export: CSV text from rows (shared/utils/csv-cell.ts: text quoted, formula starts neutralised) and a
+// download of a string or data URL.
+import { csvRow, type CsvValue } from '#shared/utils/csv-cell'
 
-export function toCsv(header: string[], rows: Array<Array<string | number | null | undefined>>): string {
-  const cell = (v: string | number | null | undefined) => {
-    if (v === null || v === undefined) return ''
-    const s = typeof v === 'number' ? (Number.isFinite(v) ? String(v) : '') : v
-    return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s
-  }
-  return [header, ...rows].map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n'
+export function toCsv(header: string[], rows: CsvValue[][]): string {
+  return [header, ...rows].map(csvRow).join('\r\n') + '\r\n'
 }
 
 export function downloadHref(href: string, filename: string): void {

@@ -178,6 +178,16 @@ export const signInFailures = pgTable('sign_in_failures', {
   at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [index('sign_in_failures_account_idx').on(t.accountKey, t.at), index('sign_in_failures_address_idx').on(t.address, t.at)])
 
+// Counted actions for volume limits (sign-ups and invitations per client address, invitations per team), kept for
+// an hour; server/utils/volume-limit.ts counts and records them under an advisory lock, so requests arriving
+// together cannot slip past the limit.
+export const actionEvents = pgTable('action_events', {
+  id: uuid('id').primaryKey().defaultRandom(),
+  kind: text('kind').notNull(),
+  key: text('key').notNull(),
+  at: timestamp('at', { withTimezone: true }).notNull().defaultNow(),
+}, (t) => [index('action_events_kind_key_idx').on(t.kind, t.key, t.at)])
+
 export type User = typeof users.$inferSelect
 export type Team = typeof teams.$inferSelect
 export type Membership = typeof memberships.$inferSelect

@@ -8,7 +8,7 @@ export const JSON_BODY_LIMIT_BYTES = 256 * 1024
 const UPLOAD_ROUTE = /^\/api\/projects\/[^/]+\/tables\/?(\?|$)/
 const UPLOAD_LIMIT_BYTES = 2 * 1024 * 1024
 
-export default defineEventHandler((event) => {
+export default defineApiHandler((event) => {
   const method = event.method
   if (method !== 'POST' && method !== 'PUT' && method !== 'PATCH' && method !== 'DELETE') return
   if (!event.path.startsWith('/api/')) return

@@ -2,7 +2,7 @@
 // `Authorization: Bearer <token>` is authenticated by the token alone (server/utils/api-tokens.ts); its cookie is ignored.
 import { loadSession } from '../utils/auth'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   if (!event.path.startsWith('/api/')) return
   const token = bearerToken(event)
   if (token !== null) {

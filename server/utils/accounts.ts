@@ -4,10 +4,9 @@ import { createError } from 'h3'
 import { generateIdFromEntropySize } from 'lucia'
 import { memberships, teams, users, type Role } from '../db/schema'
 import type { SignInInput, SignUpInput } from '../../shared/types/account'
+import { isUniqueViolation } from './api-errors'
 import type { Db } from './db'
 import { hashPassword, verifyPassword } from './password'
-
-const UNIQUE_VIOLATION = '23505'
 
 export function slugify(text: string): string {
   return text.normalize('NFKD').toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, 40) || 'team'
@@ -31,7 +30,7 @@ export async function signUpAccount(db: Db, input: SignUpInput) {
     })
   } catch (err) {
     // Two sign-ups with one e-mail at the same moment: the unique index decides.
-    if ((err as { code?: string }).code === UNIQUE_VIOLATION) throw emailTaken()
+    if (isUniqueViolation(err, 'users_email_key')) throw emailTaken()
     throw err
   }
 }

@@ -3,12 +3,12 @@ import { and, desc, eq, sql } from 'drizzle-orm'
 import { createError } from 'h3'
 import { designs, users, type Design } from '../db/schema'
 import type { DesignCreateInput, DesignUpdateInput } from '../../shared/types/design'
+import { isUniqueViolation } from './api-errors'
 import type { Db } from './db'
 
 function nameTaken(name: string) {
   return createError({ statusCode: 409, statusMessage: 'Conflict', message: `name: this project already has a design called "${name}"; choose another name.` })
 }
-const isUniqueViolation = (err: unknown) => (err as { code?: string }).code === '23505'
 
 export async function listDesigns(db: Db, projectId: string) {
   return db.select({
@@ -31,7 +31,7 @@ export async function createDesign(db: Db, projectId: string, authorId: string, 
     const [row] = await db.insert(designs).values({ projectId, authorId, name: input.name, scenario: input.scenario }).returning()
     return row!
   } catch (err) {
-    if (isUniqueViolation(err)) throw nameTaken(input.name)
+    if (isUniqueViolation(err, 'designs_project_name_key')) throw nameTaken(input.name)
     throw err
   }
 }
@@ -62,7 +62,7 @@ export async function updateDesign(db: Db, current: Design, authorId: string, in
     }
     return row
   } catch (err) {
-    if (isUniqueViolation(err)) throw nameTaken(input.name ?? current.name)
+    if (isUniqueViolation(err, 'designs_project_name_key')) throw nameTaken(input.name ?? current.name)
     throw err
   }
 }

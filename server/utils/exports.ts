@@ -1,22 +1,17 @@
 // Result exports of one run cell: JSON (everything, as the cell route returns it, plus the run's context) and a
 // long-format CSV (one value per line: section, theta_deg, phi_deg, quantity, value, std_err) that pandas, R or a
-// spreadsheet pivot reads as it is. Text that could start a spreadsheet formula is quoted with a leading ' .
+// spreadsheet pivot reads as it is. User text is always a quoted field, formula starts neutralised
+// (shared/utils/csv-cell.ts); the metadata lines are rows whose first field starts with #.
 import type { TraceResult } from '../../shared/types/result'
 import type { Run } from '../db/schema'
-
-/** Neutralises text cells a spreadsheet would run as formulas (OWASP CSV injection advice). */
-export function csvText(s: string): string {
-  const oneLine = s.replace(/[\r\n]+/g, ' ')
-  const safe = /^[=+\-@\t]/.test(oneLine) ? `'${oneLine}` : oneLine
-  return /[",]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
-}
+import { csvCommentRow } from '../../shared/utils/csv-cell'
 
 const num = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '' : String(x))
 
 export function resultCsv(run: Pick<Run, 'name' | 'designName' | 'designVersion' | 'id'>, cellIndex: number, coordinates: unknown, r: TraceResult): string {
   const out: string[] = [
-    `# Lensfield result: run ${csvText(run.name)} (${run.id}), cell ${cellIndex}, design ${csvText(run.designName)} v${run.designVersion}`,
-    `# coordinates ${csvText(JSON.stringify(coordinates))}; rays ${r.rays}; seed ${r.seed}; std_err is one standard error (1σ) of the Monte Carlo estimate`,
+    csvCommentRow('Lensfield result', ['run', run.name, 'run_id', run.id, 'cell', cellIndex, 'design', run.designName, 'design_version', run.designVersion]),
+    csvCommentRow('trace', ['coordinates', JSON.stringify(coordinates), 'rays', r.rays, 'seed', r.seed, 'std_err', 'one standard error (1σ) of the Monte Carlo estimate']),
     'section,theta_deg,phi_deg,quantity,value,std_err',
   ]
   const row = (section: string, theta: number | null, phi: number | null, q: string, v: number | null, e: number | null) =>

@@ -1,7 +1,7 @@
 // Invitations: a lead invites an e-mail address into a team with a role. The link carries a 32-byte random secret
 // (stored only as its SHA-256), works once, and expires after 7 days. Accepting joins the signed-in account with
 // that e-mail, or creates the account; an existing member gets the invited role.
-import { and, desc, eq, gt, isNull } from 'drizzle-orm'
+import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import { createError } from 'h3'
 import { generateIdFromEntropySize } from 'lucia'
 import { invitations, memberships, teams, users, type Role } from '../db/schema'
@@ -12,6 +12,17 @@ import { hashSecret, newSecret } from './secrets'
 
 export const INVITATION_DAYS = 7
 
+/** 409 when the team already has an open (unused, not withdrawn, unexpired) invitation for this address. */
+export async function assertNoPendingInvitation(db: Db, teamId: string, email: string) {
+  const [open] = await db.select({ id: invitations.id }).from(invitations)
+    .where(and(eq(invitations.teamId, teamId), sql`lower(${invitations.email}) = lower(${email})`,
+      isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .limit(1)
+  if (open) {
+    throw createError({ statusCode: 409, statusMessage: 'Conflict', message: `${email} already has an open invitation to this team. Withdraw it first to send a new one.` })
+  }
+}
+
 export async function createInvitation(db: Db, opts: { teamId: string; email: string; role: Role; invitedBy: { id: string; name: string }; baseUrl?: string }) {
   const token = newSecret()
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 86_400_000)
@@ -21,7 +32,8 @@ export async function createInvitation(db: Db, opts: { teamId: string; email: st
   }).returning()
   const url = `${publicBaseUrl(opts.baseUrl)}/invitations/${token}`
   try {
-    await sendMail(composeMail(opts.email, `${opts.invitedBy.name} invites you to ${team!.name} on Lensfield`, [
+    // The subject is fixed text: names the inviter chose stay in the body, where they read as quoted names.
+    await sendMail(composeMail(opts.email, 'A team on Lensfield invites you', [
       `${opts.invitedBy.name} invites you to join the team "${team!.name}" on Lensfield as ${opts.role}.`,
       `The link works once and expires on ${expiresAt.toISOString().slice(0, 10)} (${INVITATION_DAYS} days). If you did not expect this mail, ignore it.`,
     ], { label: 'Accept the invitation', url }))

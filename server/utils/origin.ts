@@ -9,9 +9,12 @@ export function isStateChangingMethod(method: string): boolean {
 
 /**
  * True when a request with this method, Origin header and Host header may proceed.
- * Safe methods always pass; state-changing ones need an Origin (http/https) whose host[:port] equals Host.
+ * Safe methods always pass; state-changing ones need an Origin (http/https) whose host[:port] equals Host and, when
+ * the request's scheme is given, whose scheme is that one too (an https page is another origin than the http site).
  */
-export function isOriginAllowed(method: string, origin: string | undefined | null, host: string | undefined | null): boolean {
+export function isOriginAllowed(
+  method: string, origin: string | undefined | null, host: string | undefined | null, scheme?: 'http' | 'https',
+): boolean {
   if (!isStateChangingMethod(method)) return true
   if (!origin || !host) return false
   let url: URL
@@ -21,5 +24,6 @@ export function isOriginAllowed(method: string, origin: string | undefined | nul
     return false
   }
   if (url.protocol !== 'http:' && url.protocol !== 'https:') return false
+  if (scheme && url.protocol !== `${scheme}:`) return false
   return url.host.toLowerCase() === host.trim().toLowerCase()
 }

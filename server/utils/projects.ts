@@ -3,6 +3,7 @@ import { count, desc, eq } from 'drizzle-orm'
 import { createError } from 'h3'
 import { designs, memberships, projects, teams } from '../db/schema'
 import type { ProjectCreateInput } from '../../shared/types/project'
+import { isUniqueViolation } from './api-errors'
 import type { Db } from './db'
 
 export async function listProjectsOfUser(db: Db, userId: string) {
@@ -30,7 +31,7 @@ export async function createProject(db: Db, input: ProjectCreateInput) {
     const [project] = await db.insert(projects).values(input).returning()
     return project!
   } catch (err) {
-    if ((err as { code?: string }).code === '23505') {
+    if (isUniqueViolation(err, 'projects_team_name_key')) {
       throw createError({ statusCode: 409, statusMessage: 'Conflict', message: `name: this team already has a project called "${input.name}"; choose another name.` })
     }
     throw err

@@ -4,6 +4,7 @@
 import { conicCurvaturePerUm, conicSagUm, shapeConicConstant } from '../../shared/types/geometry'
 import { buildProfile, measuredSagUm } from '../../shared/optics/profile'
 import { HEX_ROW_FACTOR, nearestSite } from '../../shared/optics/geometry'
+import { csvCommentRow } from '../../shared/utils/csv-cell'
 
 export interface LensSpec {
   lattice: 'hexagonal' | 'square'
@@ -92,7 +93,7 @@ export function sagTableCsv(lens: LensSpec, points: number, title: string): stri
   const depth = capDepthFn(lens)
   const a = lens.diameterUm / 2
   const lines = [
-    `# Lensfield sag table: ${title}`,
+    csvCommentRow('Lensfield sag table', [title]),
     `# lattice ${lens.lattice}, pitch_um ${lens.pitchUm}, diameter_um ${lens.diameterUm}, sag_um ${lens.sagUm}, shape ${lens.shape}${lens.conicConstant !== undefined ? `, conic_constant ${lens.conicConstant}` : ''}`,
     'r_um,height_um,sag_um',
   ]

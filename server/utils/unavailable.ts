@@ -1,8 +1,6 @@
 // When PostgreSQL is down (restarting, unreachable), data routes answer 503 with a message a person can act on,
-// instead of a bare 500, and the site itself keeps serving. The pool's query and connect are wrapped so every
-// caller (Drizzle, the session adapter, raw queries) gets the same answer.
+// instead of a bare 500, and the site itself keeps serving. server/utils/api-errors.ts applies it to every route.
 import { createError } from 'h3'
-import type pg from 'pg'
 
 const CONNECTION_CODES = new Set([
   'ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'ENOTFOUND',
@@ -27,23 +25,4 @@ export function databaseUnavailableError(cause?: unknown) {
     message: 'The database is not answering right now; nothing was changed. Try again in a moment.',
     cause,
   })
-}
-
-/** Wraps pool.query and pool.connect so connection failures surface as 503 errors. */
-export function answer503WhenDatabaseIsDown(pool: pg.Pool) {
-  const marked = pool as pg.Pool & { __lensfield503?: boolean }
-  if (marked.__lensfield503) return
-  marked.__lensfield503 = true
-  const query = pool.query.bind(pool) as (...args: unknown[]) => unknown
-  const connect = pool.connect.bind(pool) as (...args: unknown[]) => unknown
-  const map = (err: unknown) => { throw isDatabaseUnavailable(err) ? databaseUnavailableError(err) : err }
-  ;(pool as unknown as { query: unknown }).query = (...args: unknown[]) => {
-    // Callback style is left as it is; every caller here uses promises.
-    if (typeof args[args.length - 1] === 'function') return query(...args)
-    return (query(...args) as Promise<unknown>).catch(map)
-  }
-  ;(pool as unknown as { connect: unknown }).connect = (...args: unknown[]) => {
-    if (typeof args[0] === 'function') return connect(...args)
-    return (connect() as Promise<unknown>).catch(map)
-  }
 }

@@ -1,5 +1,6 @@
 // Upload query of a measurement table (the body is the CSV itself).
 import { z } from 'zod'
+import { stripBidiControls } from './limits'
 
 export const dataTableKindSchema = z.enum(['lens_profile', 'angular_profile', 'refractive_index'], {
   error: 'kind must be one of lens_profile (r_um, height_um), angular_profile (theta_deg, intensity), refractive_index (wavelength_nm, n, k)',
@@ -7,7 +8,7 @@ export const dataTableKindSchema = z.enum(['lens_profile', 'angular_profile', 'r
 
 export const dataTableUploadQuerySchema = z.object({
   kind: dataTableKindSchema,
-  name: z.string({ error: 'name is required' }).trim().min(1, { error: 'name must not be empty' }).max(120, { error: 'name must be at most 120 characters' }),
+  name: z.string({ error: 'name is required' }).overwrite(stripBidiControls).trim().min(1, { error: 'name must not be empty' }).max(120, { error: 'name must be at most 120 characters' }),
   fileName: z.string({ error: 'fileName is required (the name of the uploaded file)' }).max(400),
   /** Lens profiles only: fit the stylus trace before storing (shared/utils/profile-fit.ts); the raw rows are kept. */
   fit: z.enum(['none', 'isotonic', 'asphere'], { error: 'fit must be none, isotonic (smoothing + monotone fit) or asphere (conic/even-asphere least squares)' }).default('none'),

@@ -1,5 +1,6 @@
 // Design bodies: a design is a named scenario (shared/types/scenario.ts) saved in a project.
 import { z } from 'zod'
+import { INT4_MAX } from './limits'
 import { scenarioSchema } from './scenario'
 import { designNameSchema } from './project'
 
@@ -13,6 +14,7 @@ export const designUpdateSchema = z.object({
   name: designNameSchema.optional(),
   scenario: scenarioSchema.optional(),
   /** The version the change was made on; a newer stored version makes the save fail with 409. */
-  baseVersion: z.number({ error: 'baseVersion must be a whole number' }).int({ error: 'baseVersion must be a whole number' }).min(1).optional(),
+  baseVersion: z.number({ error: 'baseVersion must be a whole number' }).int({ error: 'baseVersion must be a whole number' }).min(1)
+    .max(INT4_MAX, { error: `baseVersion must be at most ${INT4_MAX}` }).optional(),
 }).refine((b) => b.name !== undefined || b.scenario !== undefined, { error: 'send name and/or scenario to change' })
 export type DesignUpdateInput = z.infer<typeof designUpdateSchema>

@@ -1,11 +1,13 @@
 // Shortlist contracts: bookmark a run cell with a note, choose one candidate (lead), discuss notes.
 import { z } from 'zod'
+import { INT4_MAX } from './limits'
 
 const note = z.string().trim().max(2000, { error: 'note must be at most 2000 characters' })
 
 export const shortlistAddSchema = z.object({
   runId: z.uuid({ error: 'runId must be a UUID' }),
-  cellIndex: z.number({ error: 'cellIndex is required' }).int().min(0, { error: 'cellIndex must be 0 or more' }).default(0),
+  cellIndex: z.number({ error: 'cellIndex is required' }).int().min(0, { error: 'cellIndex must be 0 or more' })
+    .max(INT4_MAX, { error: `cellIndex must be at most ${INT4_MAX}` }).default(0),
   note: note.default(''),
 })
 

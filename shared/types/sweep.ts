@@ -4,6 +4,7 @@
 // with the helpers of ./geometry, and a cell whose geometry cannot be built is marked infeasible with the reason
 // instead of failing the sweep. Lengths in µm, as everywhere in the scenario.
 import { z } from 'zod'
+import { stripBidiControls } from './limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
 
@@ -88,7 +89,7 @@ export const precisionSchema = z
 
 export const runRequestSchema = z.object({
   designId: z.uuid({ error: 'designId must be the UUID of a saved design' }),
-  name: z.string().trim().min(1).max(120).optional(),
+  name: z.string().overwrite(stripBidiControls).trim().min(1).max(120).optional(),
   seed: z.number().int().min(0).max(0xffffffff).optional(),
   precision: precisionSchema.optional(),
 })

@@ -1,5 +1,6 @@
 // Team workflow contracts: invitations, password reset, API tokens.
 import { z } from 'zod'
+import { stripBidiControls } from './limits'
 import { emailSchema, signUpSchema, ROLE_NAMES } from './account'
 
 
@@ -32,5 +33,5 @@ export const passwordResetRequestSchema = z.object({ email: emailSchema })
 export const passwordResetConfirmSchema = z.object({ token: linkTokenSchema, password: signUpSchema.shape.password })
 
 export const apiTokenCreateSchema = z.object({
-  name: z.string({ error: 'name is required' }).trim().min(1, { error: 'name must not be empty' }).max(80, { error: 'name must be at most 80 characters' }),
+  name: z.string({ error: 'name is required' }).overwrite(stripBidiControls).trim().min(1, { error: 'name must not be empty' }).max(80, { error: 'name must be at most 80 characters' }),
 })

@@ -62,7 +62,8 @@ const MATRIX: Record<string, Row> = {
   'GET /api/invitations/preview': ALL(404), // unknown link token
   'POST /api/invitations/accept': ALL(404), // unknown link token
   'GET /api/demo/accounts': ALL(200), // the api tests run in demo mode
-  'GET /api/dev/mailbox': ALL(200), // demo mode only (404 otherwise; see server/utils/mailbox.ts)
+  // Demo mode only (404 otherwise); signed in, and only the user's own mail (server/utils/mailbox.ts).
+  'GET /api/dev/mailbox': R(200, 200, 200, 200, 401, 200),
 
   // Projects and designs.
   'GET /api/projects': R(200, 200, 200, 200, 401, 200),

@@ -84,6 +84,8 @@ describe('faults mid-sweep', () => {
         `SELECT count(*)::int AS n FROM run_batches b JOIN run_cells c ON c.id = b.cell_id WHERE c.run_id = $1 AND b.status = 'done'`, [id])
       return r.n >= 3
     })
+    const minted = await t.client.post('/api/account/tokens', { name: 'outage probe' })
+    expect(minted.status).toBe(201)
     const port = Number(new URL(inject('databaseUrl')).port)
     stopServer(binDir!, dataDir!)
     try {
@@ -96,6 +98,15 @@ describe('faults mid-sweep', () => {
       expect(projects.body.message).toMatch(/database is not answering/)
       const sweep = await t.client.get(`/api/sweeps/${id}`)
       expect(sweep.status).toBe(503)
+      // Every route maps a lost database the same way (server/utils/api-errors.ts), not only the cookie path:
+      // a bearer-token request, a sign-in and the mailbox.
+      const byToken = await fetch(`${inject('baseUrl')}/api/projects`, { headers: { authorization: `Bearer ${minted.body.token}` } })
+      expect(byToken.status).toBe(503)
+      expect((await byToken.json()).message).toMatch(/database is not answering/)
+      const signIn = await new ApiClient().post('/api/auth/sign-in', { email: t.email, password: t.password })
+      expect(signIn.status).toBe(503)
+      expect(signIn.body.message).toMatch(/database is not answering/)
+      expect((await t.client.get('/api/dev/mailbox')).status).toBe(503)
       await new Promise((r) => setTimeout(r, 3000))
     } finally {
       startServer(binDir!, dataDir!, port, true)

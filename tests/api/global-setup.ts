@@ -49,6 +49,10 @@ export default async function setup(project: TestProject) {
       LENSFIELD_JOB_EXPIRE_SECONDS: '8',
       LENSFIELD_JOB_RETRY_DELAY_SECONDS: '1',
       LENSFIELD_QUEUE_MAINTENANCE_SECONDS: '1',
+      // Every test signs up from 127.0.0.1; tests/api/volume-limits.test.ts starts a server of its own with the
+      // default limits.
+      LENSFIELD_SIGN_UPS_PER_ADDRESS_HOUR: '100000',
+      LENSFIELD_INVITATIONS_PER_ADDRESS_HOUR: '100000',
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   })

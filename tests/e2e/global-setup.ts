@@ -50,6 +50,9 @@ export default async function setup(project: TestProject) {
       // the embedded worker stays on (LENSFIELD_EMBEDDED_WORKER unset); small batches so progress moves visibly
       LENSFIELD_BATCH_RAYS: '10000',
       LENSFIELD_QUEUE_MAINTENANCE_SECONDS: '1',
+      // Every browser signs up from 127.0.0.1; the volume limits are tested in tests/api/volume-limits.test.ts.
+      LENSFIELD_SIGN_UPS_PER_ADDRESS_HOUR: '100000',
+      LENSFIELD_INVITATIONS_PER_ADDRESS_HOUR: '100000',
     },
     stdio: ['ignore', 'pipe', 'pipe'],
   })

@@ -25,3 +25,15 @@ describe('isOriginAllowed', () => {
     }
   })
 })
+
+describe('isOriginAllowed compares the scheme when the request has one', () => {
+  // RFC 6454 §4: an origin is (scheme, host, port); https://h and http://h are different origins.
+  it('refuses an https origin for an http request to the same host', () => {
+    expect(isOriginAllowed('POST', 'https://127.0.0.1:3000', '127.0.0.1:3000', 'http')).toBe(false)
+    expect(isOriginAllowed('POST', 'http://127.0.0.1:3000', '127.0.0.1:3000', 'https')).toBe(false)
+  })
+  it('accepts the matching scheme', () => {
+    expect(isOriginAllowed('POST', 'http://127.0.0.1:3000', '127.0.0.1:3000', 'http')).toBe(true)
+    expect(isOriginAllowed('PATCH', 'https://lensfield.test', 'lensfield.test', 'https')).toBe(true)
+  })
+})

@@ -20,6 +20,6 @@ describe('figures with σ', () => {
   })
 
   it('CSV quotes commas, quotes and line breaks (RFC 4180) and leaves non-finite numbers empty', () => {
-    expect(toCsv(['a', 'b'], [['x,y', 'say "hi"'], [1.5, NaN]])).toBe('a,b\r\n"x,y","say ""hi"""\r\n1.5,\r\n')
+    expect(toCsv(['a', 'b'], [['x,y', 'say "hi"'], [1.5, NaN]])).toBe('"a","b"\r\n"x,y","say ""hi"""\r\n1.5,\r\n')
   })
 })

@@ -4,7 +4,7 @@
 import { signInSchema } from '../../../shared/types/account'
 import { assertSignInAllowed, clearSignInFailures, recordSignInFailure } from '../../utils/sign-in-limit'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(signInSchema))
   const db = useDb()
   await assertSignInAllowed(db, event, body.email)

@@ -1,5 +1,5 @@
 // In demo mode (npm start / npm run dev) the sign-in page lists the demo accounts; otherwise this does not exist.
-export default defineEventHandler((event) => {
+export default defineApiHandler((event) => {
   if (!useRuntimeConfig(event).public.demoMode) {
     throw createError({ statusCode: 404, statusMessage: 'Not Found', message: 'Demo mode is off.' })
   }

@@ -1,6 +1,6 @@
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   await requireDesignRole(event, id, EDITOR_ROLES, 'deleting a design')
   await deleteDesign(useDb(), id)

@@ -2,7 +2,7 @@
 import { designUpdateSchema } from '../../../shared/types/design'
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { user, design } = await requireDesignRole(event, id, EDITOR_ROLES, 'changing a design')
   const body = await readValidatedBody(event, zodValidator(designUpdateSchema))

@@ -1,7 +1,7 @@
 // A lead withdraws an unused invitation.
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   requireUser(event)
   const teamId = await findInvitationTeam(useDb(), id)

@@ -2,7 +2,7 @@
 import { z } from 'zod'
 import { linkTokenSchema } from '../../../shared/types/team'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { token } = await getValidatedQuery(event, zodValidator(z.object({ token: linkTokenSchema })))
   return { invitation: await describeInvitation(useDb(), token) }
 })

@@ -1,6 +1,6 @@
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { project, role } = await requireProjectRole(event, id, ANY_ROLE)
   return { project, role }

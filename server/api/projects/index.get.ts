@@ -1,5 +1,5 @@
 // Projects of every team the user belongs to, with the user's role in each.
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const user = requireUser(event)
   return { projects: await listProjectsOfUser(useDb(), user.id) }
 })

@@ -1,7 +1,7 @@
 import { idParamSchema } from '../../../shared/types/project'
 import { runProgress } from '../../jobs/runs'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { run, role } = await requireRunRole(event, id, ANY_ROLE)
   const cells = await listCellSummaries(id)

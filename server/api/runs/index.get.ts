@@ -1,6 +1,6 @@
 import { runListQuerySchema } from '../../../shared/types/run'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const q = await getValidatedQuery(event, zodValidator(runListQuerySchema))
   await requireProjectRole(event, q.projectId, ANY_ROLE)
   return { runs: await listRuns(q.projectId, q.kind) }

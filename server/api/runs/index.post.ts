@@ -1,6 +1,6 @@
 import { runRequestSchema } from '../../../shared/types/sweep'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(runRequestSchema))
   const run = await startRunFromRequest(event, body, 'single')
   setResponseStatus(event, 201)

@@ -1,6 +1,6 @@
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { entry, user, role } = await requireShortlistRole(event, id, ANY_ROLE)
   await removeEntry(useDb(), entry, user, role)

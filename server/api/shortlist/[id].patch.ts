@@ -2,7 +2,7 @@
 import { idParamSchema } from '../../../shared/types/project'
 import { shortlistNoteSchema } from '../../../shared/types/shortlist'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { note } = await readValidatedBody(event, zodValidator(shortlistNoteSchema))
   const { entry, user, role } = await requireShortlistRole(event, id, ANY_ROLE)

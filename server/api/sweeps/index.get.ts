@@ -1,6 +1,6 @@
 import { runListQuerySchema } from '../../../shared/types/run'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const q = await getValidatedQuery(event, zodValidator(runListQuerySchema.omit({ kind: true })))
   await requireProjectRole(event, q.projectId, ANY_ROLE)
   return { sweeps: await listRuns(q.projectId, 'sweep') }

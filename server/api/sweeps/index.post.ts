@@ -1,6 +1,6 @@
 import { sweepRequestSchema } from '../../../shared/types/sweep'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(sweepRequestSchema))
   const run = await startRunFromRequest(event, body, 'sweep')
   setResponseStatus(event, 201)

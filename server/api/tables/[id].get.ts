@@ -2,7 +2,7 @@
 // fragment it becomes.
 import { idParamSchema } from '../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   requireUser(event)
   const table = await getDataTable(useDb(), id)

@@ -1,4 +1,4 @@
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const user = requireUser(event)
   requireSessionAuth(event)
   return { tokens: await listApiTokens(useDb(), user.id) }

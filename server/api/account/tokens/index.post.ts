@@ -1,7 +1,7 @@
 // Creates a personal API token; the secret is in this reply only.
 import { apiTokenCreateSchema } from '../../../../shared/types/team'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const user = requireUser(event)
   requireSessionAuth(event)
   const { name } = await readValidatedBody(event, zodValidator(apiTokenCreateSchema))

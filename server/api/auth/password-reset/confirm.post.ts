@@ -1,7 +1,7 @@
 // Sets a new password from a reset link; every existing session of the account is ended, a new one started.
 import { passwordResetConfirmSchema } from '../../../../shared/types/team'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { token, password } = await readValidatedBody(event, zodValidator(passwordResetConfirmSchema))
   const userId = await resetPassword(useDb(), token, password)
   await useLucia().invalidateUserSessions(userId)

@@ -1,7 +1,7 @@
 // Always 202 with the same message; the mail (if the address has an account) goes out after the reply.
 import { passwordResetRequestSchema } from '../../../../shared/types/team'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { email } = await readValidatedBody(event, zodValidator(passwordResetRequestSchema))
   const origin = getRequestURL(event).origin
   const work = sendPasswordReset(useDb(), email, origin).catch((err) => console.error('[mail] password reset:', (err as Error).message))

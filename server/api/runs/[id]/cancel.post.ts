@@ -1,7 +1,7 @@
 import { idParamSchema } from '../../../../shared/types/project'
 import { cancelRun } from '../../../jobs/runs'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   await requireRunRole(event, id, EDITOR_ROLES, 'cancelling a run')
   const r = await cancelRun(id)

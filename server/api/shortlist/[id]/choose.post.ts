@@ -3,7 +3,7 @@
 import { idParamSchema } from '../../../../shared/types/project'
 import { shortlistChooseSchema } from '../../../../shared/types/shortlist'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { reason, replaceChosen } = await readValidatedBody(event, zodValidator(shortlistChooseSchema))
   const { entry, user } = await requireShortlistRole(event, id, ['lead'], 'choosing the candidate')

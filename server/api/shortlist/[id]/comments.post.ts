@@ -2,7 +2,7 @@
 import { idParamSchema } from '../../../../shared/types/project'
 import { shortlistCommentSchema } from '../../../../shared/types/shortlist'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { body } = await readValidatedBody(event, zodValidator(shortlistCommentSchema))
   const { entry, user } = await requireShortlistRole(event, id, ANY_ROLE)

@@ -1,6 +1,6 @@
 import { idParamSchema } from '../../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { entry, user } = await requireShortlistRole(event, id, ['lead'], 'changing the chosen candidate')
   return { entry: await unchooseEntry(useDb(), entry, user.id) }

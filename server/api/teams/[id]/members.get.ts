@@ -2,7 +2,7 @@ import { asc, eq } from 'drizzle-orm'
 import { memberships, users } from '../../../db/schema'
 import { idParamSchema } from '../../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   await requireTeamRole(event, id, ANY_ROLE)
   const members = await useDb().select({ id: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })

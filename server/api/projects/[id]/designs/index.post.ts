@@ -1,7 +1,7 @@
 import { designCreateSchema } from '../../../../../shared/types/design'
 import { idParamSchema } from '../../../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   // Role first: a viewer learns they cannot save before being told what is wrong with the body.
   const { user } = await requireProjectRole(event, id, EDITOR_ROLES, 'saving a design')

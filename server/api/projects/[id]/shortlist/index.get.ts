@@ -1,7 +1,7 @@
 // The project's shortlist (chosen candidate first) and its history of changes.
 import { idParamSchema } from '../../../../../shared/types/project'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { role } = await requireProjectRole(event, id, ANY_ROLE)
   const db = useDb()

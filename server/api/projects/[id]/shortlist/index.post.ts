@@ -2,7 +2,7 @@
 import { idParamSchema } from '../../../../../shared/types/project'
 import { shortlistAddSchema } from '../../../../../shared/types/shortlist'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const body = await readValidatedBody(event, zodValidator(shortlistAddSchema))
   const { user } = await requireProjectRole(event, id, ANY_ROLE)

@@ -3,7 +3,7 @@
 import { idParamSchema } from '../../../../../shared/types/project'
 import { dataTableUploadQuerySchema } from '../../../../../shared/types/data-table'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const query = await getValidatedQuery(event, zodValidator(dataTableUploadQuerySchema))
   const { user } = await requireProjectRole(event, id, EDITOR_ROLES, 'uploading tables')

@@ -2,7 +2,7 @@
 import { cellParamSchema } from '../../../../../../shared/types/run'
 import { resultExportQuerySchema } from '../../../../../../shared/types/export'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id, index } = await getValidatedRouterParams(event, zodValidator(cellParamSchema))
   const { format } = await getValidatedQuery(event, zodValidator(resultExportQuerySchema))
   const { run } = await requireRunRole(event, id, ANY_ROLE)

@@ -5,7 +5,7 @@ import { runCells } from '../../../../../db/schema'
 import { cellParamSchema } from '../../../../../../shared/types/run'
 import { surfaceExportQuerySchema } from '../../../../../../shared/types/export'
 
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id, index } = await getValidatedRouterParams(event, zodValidator(cellParamSchema))
   const q = await getValidatedQuery(event, zodValidator(surfaceExportQuerySchema))
   const { run } = await requireRunRole(event, id, ANY_ROLE)
