@@ -7,6 +7,7 @@ import { buildApp, startChild, waitForHttp } from './run'
 import { startFakeSmtp, type FakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../server/utils/demo'
+import { loadDemoResults } from '../server/utils/demo-results'
 import type { ChildProcess } from 'node:child_process'
 
 let app: ChildProcess | undefined
@@ -21,6 +22,7 @@ stopOnExit(() => {
 await migrateDatabase(db.url)
 const pool = new pg.Pool({ connectionString: db.url, max: 2 })
 await loadDemoData(dbFromPool(pool))
+await loadDemoResults(dbFromPool(pool))
 await pool.end()
 console.log('[demo] demo data loaded')
 

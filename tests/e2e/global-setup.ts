@@ -11,6 +11,7 @@ import { createDatabase, freePort, migrateDatabase, repoRoot } from '../../scrip
 import { waitForHttp } from '../../scripts/run'
 import { dbFromPool } from '../../server/utils/db'
 import { loadDemoData } from '../../server/utils/demo'
+import { loadDemoResults } from '../../server/utils/demo-results'
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -30,6 +31,7 @@ export default async function setup(project: TestProject) {
 
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 2 })
   const { projectId } = await loadDemoData(dbFromPool(pool))
+  await loadDemoResults(dbFromPool(pool))
   await pool.end()
 
   const port = await freePort()
