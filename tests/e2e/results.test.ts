@@ -100,6 +100,20 @@ describe('demo results', () => {
     expect(pageErrors).toEqual([])
   })
 
+  it('the demo run: half-disc polar plot with the near-axis bins pooled (said in the note), dates with an ISO tooltip', async () => {
+    await page.goto(`${baseUrl}/projects/${projectId}`)
+    const when = page.locator('time[datetime]').first()
+    await when.waitFor()
+    const iso = (await when.getAttribute('datetime'))!
+    expect(iso).toMatch(/^\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z$/)
+    expect(await when.getAttribute('title')).toBe(iso)
+    await Promise.all([page.waitForURL(/\/runs\//), page.getByRole('link', { name: DEMO_RUN.name }).first().click()])
+    await page.locator('[data-testid=chart-polar] canvas').first().waitFor()
+    expect(await page.getByTestId('chart-polar').textContent()).toMatch(/0–5° pooled into one value \([\d.e−-]+ ± [\d.e−-]+ sr⁻¹\)/)
+    await shot(page, '23-demo-run')
+    expect(pageErrors).toEqual([])
+  })
+
   it('a viewer reads the limits but gets no edit button, and is refused by the server', async () => {
     const s = await launch()
     try {
