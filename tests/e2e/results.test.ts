@@ -114,6 +114,18 @@ describe('demo results', () => {
     expect(pageErrors).toEqual([])
   })
 
+  it('the report of the chosen demo candidate names the sweep point by its axes and words figures as the result page', async () => {
+    const list = await page.evaluate(async (u) => (await fetch(u)).json(), `/api/projects/${projectId}/shortlist`) as { entries: Array<{ id: string; chosen: boolean }> }
+    const chosen = list.entries.find((e) => e.chosen)!
+    await page.goto(`${baseUrl}/reports/${chosen.id}`)
+    await page.getByTestId('report-point').waitFor()
+    expect(await page.getByTestId('report-point').textContent()).toMatch(/^Radius of curvature [\d.]+ µm, Fill factor [\d.]+$/)
+    const text = (await page.locator('body').textContent())!
+    expect(text).toMatch(/Half-luminance angle(above 89\.5°|[\d.]+ ± [\d.]+°)/)
+    expect(text).toContain('Lambertian source of the same extracted flux')
+    await shot(page, '24-demo-report')
+  })
+
   it('a viewer reads the limits but gets no edit button, and is refused by the server', async () => {
     const s = await launch()
     try {
