@@ -7,6 +7,7 @@ import { prepareWorker } from './trace-pool'
 import { startFakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { loadDemoData } from '../server/utils/demo'
+import { loadDemoResults } from '../server/utils/demo-results'
 
 let nuxt: ChildProcess | undefined
 const db = await ensurePostgres({ database: 'lensfield' })
@@ -17,6 +18,7 @@ stopOnExit(() => {
 await migrateDatabase(db.url)
 const pool = new pg.Pool({ connectionString: db.url, max: 2 })
 await loadDemoData(dbFromPool(pool))
+await loadDemoResults(dbFromPool(pool))
 await pool.end()
 
 // Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.

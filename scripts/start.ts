@@ -1,7 +1,9 @@
 // `npm start`: Postgres on loopback → migrations → production build → node .output/server/index.mjs.
-// Demo mode is explicit: `npm run demo` (= `npm start -- --demo`, or LENSFIELD_DEMO=1) also loads the demo data,
-// lists the demo accounts on the sign-in page and opens the development mailbox; it prints a warning, because
-// anyone who can reach the port can then sign in with the published demo passwords.
+// `npm start` runs in demo mode, and says so: it loads the demo data (with finished results), lists the demo
+// accounts on the sign-in page and opens the development mailbox to signed-in readers, and prints a warning, because
+// anyone who can reach the port can then sign in with the published demo passwords. `npm start -- --production`
+// (or LENSFIELD_DEMO=0) starts without any of it. The built server itself (.output/server/index.mjs) is in
+// production mode unless this script (or the operator) sets the demo flag explicitly.
 // Ctrl-C (or SIGTERM) stops the app and the database server it started.
 import pg from 'pg'
 import { join } from 'node:path'
@@ -10,9 +12,10 @@ import { buildApp, startChild, waitForHttp } from './run'
 import { startFakeSmtp, type FakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../server/utils/demo'
+import { loadDemoResults } from '../server/utils/demo-results'
 import type { ChildProcess } from 'node:child_process'
 
-const demo = process.argv.includes('--demo') || process.env.LENSFIELD_DEMO === '1'
+const demo = !process.argv.includes('--production') && process.env.LENSFIELD_DEMO !== '0'
 let app: ChildProcess | undefined
 let mailbox: FakeSmtp | undefined
 const db = await ensurePostgres({ database: 'lensfield' })
@@ -26,6 +29,7 @@ await migrateDatabase(db.url)
 if (demo) {
   const pool = new pg.Pool({ connectionString: db.url, max: 2 })
   await loadDemoData(dbFromPool(pool))
+  await loadDemoResults(dbFromPool(pool))
   await pool.end()
   console.log('[demo] demo data loaded')
 }
@@ -60,7 +64,7 @@ if (demo) {
 Lensfield is running at ${url} in DEMO MODE
 
 WARNING: demo mode is for trying Lensfield on your own machine. The demo accounts below have published passwords
-and the sign-in page lists them; do not expose this port to other people. Start without --demo for real use.
+and the sign-in page lists them; do not expose this port to other people. For real use: npm start -- --production.
 
 Demo accounts (team "Tallowby Luminous Panels"):
 ${DEMO_USERS.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(34)} password: ${u.password}`).join('\n')}
@@ -71,6 +75,6 @@ ${mailbox ? `Mail is captured (nothing is delivered); signed in, read your own a
   console.log(`
 Lensfield is running at ${url}
 
-${mailbox ? 'No mail server is configured (LENSFIELD_SMTP_HOST): mail is captured locally and not delivered.\n\n' : ''}Press Ctrl-C to stop the app and its database server. (\`npm run demo\` starts it with the demo data.)
+${mailbox ? 'No mail server is configured (LENSFIELD_SMTP_HOST): mail is captured locally and not delivered.\n\n' : ''}Press Ctrl-C to stop the app and its database server. (Plain \`npm start\` starts it with the demo data.)
 `)
 }

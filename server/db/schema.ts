@@ -2,6 +2,7 @@
 // users/sessions follow the column names lucia's PostgreSQL adapter queries (id, user_id, expires_at).
 import { sql } from 'drizzle-orm'
 import { bigint, boolean, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
+import type { ProjectLimits } from '../../shared/types/project'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
 export const ROLES = roleEnum.enumValues
@@ -42,6 +43,8 @@ export const projects = pgTable('projects', {
   teamId: uuid('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
   name: text('name').notNull(),
   description: text('description').notNull().default(''),
+  /** Fabrication limits the lead states for the project (shared/types/project.ts projectLimitsSchema); null: none. */
+  limits: jsonb('limits').$type<ProjectLimits>(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [uniqueIndex('projects_team_name_key').on(t.teamId, t.name)])

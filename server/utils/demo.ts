@@ -21,6 +21,7 @@ export const DEMO_PROJECT = {
   name: 'TL-40 warm-white tile: extraction film',
   description: 'Bottom-emitting 40 mm warm-white tile on 100 µm glass. Goal: a lens film that lifts extraction '
     + 'well above the flat device while the embossing line can still mould it (sag ≤ 5 µm).',
+  limits: { maxSagUm: 5 },
 }
 
 const device = {

@@ -5,6 +5,7 @@
 import type { TraceResult } from '../../shared/types/result'
 import type { Run } from '../db/schema'
 import { csvCommentRow } from '../../shared/utils/csv-cell'
+import { fileName } from '../../shared/utils/file-name'
 
 const num = (x: number | null | undefined) => (x === null || x === undefined || !Number.isFinite(x) ? '' : String(x))
 
@@ -38,5 +39,16 @@ export function resultCsv(run: Pick<Run, 'name' | 'designName' | 'designVersion'
 
 /** A file name from free text: letters, digits, dot, dash, underscore. */
 export function downloadName(...parts: string[]): string {
-  return parts.join('-').normalize('NFKD').replace(/[^A-Za-z0-9._-]+/g, '_').replace(/^_+|_+$/g, '').slice(0, 120) || 'lensfield'
+  // units and symbols spelled out (10 µm → 10um, θ → theta), parts joined with _ (shared/utils/file-name.ts)
+  return fileName(...parts)
+}
+
+/**
+ * A cell's scenario as exported: trace.rays and trace.seed say what was actually traced (the rays counted in the
+ * cell and its own seed), not the design's request, so re-running the file reproduces the exported figures.
+ */
+export function tracedScenario(scenario: unknown, raysTraced: number, seed: number): unknown {
+  if (!scenario || typeof scenario !== 'object') return scenario
+  const sc = scenario as { trace?: Record<string, unknown> }
+  return { ...sc, trace: { ...(sc.trace ?? {}), rays: raysTraced, seed } }
 }

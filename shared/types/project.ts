@@ -12,5 +12,32 @@ export const projectCreateSchema = z.object({
 })
 export type ProjectCreateInput = z.infer<typeof projectCreateSchema>
 
+/**
+ * Fabrication limits a lead states for a project (what the mould or embossing line can make); every one optional.
+ * Result pages mark sweep cells whose geometry breaks one. Lengths in µm; aspect ratio is sag / lens diameter.
+ */
+export const projectLimitsSchema = z.object({
+  maxSagUm: z.number({ error: 'maxSagUm must be a number of µm' }).positive({ error: 'maxSagUm (largest sag) must be above 0 µm' }).max(1000, { error: 'maxSagUm must be at most 1000 µm' }).optional(),
+  maxAspectRatio: z.number({ error: 'maxAspectRatio must be a number' }).positive({ error: 'maxAspectRatio (sag / diameter) must be above 0' }).max(0.5, { error: 'maxAspectRatio (sag / diameter) must be at most 0.5, a hemisphere' }).optional(),
+  minGapUm: z.number({ error: 'minGapUm must be a number of µm' }).min(0, { error: 'minGapUm (smallest gap between lenses) must not be negative' }).max(1000, { error: 'minGapUm must be at most 1000 µm' }).optional(),
+}).strict()
+export type ProjectLimits = z.infer<typeof projectLimitsSchema>
+
+export const projectPatchSchema = z.object({ limits: projectLimitsSchema.nullable() }).strict()
+
+/** A lens geometry checked against the limits: one line per broken limit, in the trade's words. */
+export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined, limits: ProjectLimits | null | undefined): string[] {
+  if (!lens || !limits) return []
+  const out: string[] = []
+  const r = (v: number) => String(Number(v.toPrecision(4)))
+  if (limits.maxSagUm !== undefined && lens.sagUm > limits.maxSagUm) out.push(`sag ${r(lens.sagUm)} µm > ${r(limits.maxSagUm)} µm`)
+  const aspect = lens.sagUm / lens.diameterUm
+  if (limits.maxAspectRatio !== undefined && aspect > limits.maxAspectRatio) out.push(`aspect ratio h/D ${r(aspect)} > ${r(limits.maxAspectRatio)}`)
+  // Gap along the lattice's nearest-neighbour direction (pitch − diameter), the narrowest land the tool must cut.
+  const gap = lens.pitchUm - lens.diameterUm
+  if (limits.minGapUm !== undefined && gap < limits.minGapUm) out.push(`gap ${r(gap)} µm < ${r(limits.minGapUm)} µm`)
+  return out
+}
+
 export const designNameSchema = z.string({ error: 'name is required' }).overwrite(stripBidiControls).trim()
   .min(1, { error: 'name must not be empty' }).max(120, { error: 'name must be at most 120 characters' })

@@ -157,9 +157,13 @@ describe('exports', () => {
     const json = await demo.viewer.get(`/api/runs/${sweepId}/cells/0/export?format=json`)
     expect(json.status).toBe(200)
     expect(json.body.result.intensity.perSteradianStdErr).toHaveLength(json.body.result.intensity.thetaCentersDeg.length)
+    // the exported scenario says what was traced: the cell's rays and seed, not the design's request
+    expect(json.body.cell.scenario.trace.rays).toBe(json.body.result.rays)
+    expect(json.body.cell.scenario.trace.seed).toBe(Number(json.body.cell.seed))
     const csv = await rawRequest(baseUrl, 'GET', `/api/runs/${sweepId}/cells/0/export?format=csv`, { headers: { cookie: demo.viewer.cookie } })
     expect(csv.status).toBe(200)
     expect(csv.headers.get('content-type')).toMatch(/text\/csv/)
+    expect(csv.headers.get('content-disposition')).toMatch(/^attachment; filename="[A-Za-z0-9._-]+_cell0\.csv"$/)
     const lines = csv.bytes.trim().split('\n').filter((l: string) => !l.startsWith('#'))
     expect(lines[0]).toBe('section,theta_deg,phi_deg,quantity,value,std_err')
     const ext = lines.find((l: string) => l.startsWith('summary,,,extraction,'))!.split(',')

@@ -12,6 +12,7 @@ import { waitForHttp } from '../../scripts/run'
 import { dbFromPool } from '../../server/utils/db'
 import { loadDemoData } from '../../server/utils/demo'
 import { startFakeSmtp } from '../../scripts/fake-smtp'
+import { loadDemoResults } from '../../server/utils/demo-results'
 
 declare module 'vitest' {
   export interface ProvidedContext {
@@ -33,6 +34,7 @@ export default async function setup(project: TestProject) {
 
   const pool = new pg.Pool({ connectionString: databaseUrl, max: 2 })
   const { projectId } = await loadDemoData(dbFromPool(pool))
+  await loadDemoResults(dbFromPool(pool))
   await pool.end()
 
   // Invitations send mail: the fake SMTP server stores it in the e2e database's mailbox_messages.

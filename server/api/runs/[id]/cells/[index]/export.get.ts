@@ -12,7 +12,8 @@ export default defineApiHandler(async (event) => {
   const name = downloadName(run.name, `cell${index}`)
   if (format === 'json') {
     setResponseHeader(event, 'content-disposition', `attachment; filename="${name}.json"`)
-    return { run: { id: run.id, name: run.name, designName: run.designName, designVersion: run.designVersion, engineVersion: run.engineVersion }, cell: found.cell, result: found.result }
+    const cell = { ...found.cell, scenario: tracedScenario(found.cell.scenario, found.result.rays, Number(found.cell.seed)) }
+    return { run: { id: run.id, name: run.name, designName: run.designName, designVersion: run.designVersion, engineVersion: run.engineVersion }, cell, result: found.result }
   }
   setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
   setResponseHeader(event, 'content-disposition', `attachment; filename="${name}.csv"`)
