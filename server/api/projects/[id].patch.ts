@@ -3,7 +3,7 @@ import { projects } from '../../db/schema'
 import { idParamSchema, projectPatchSchema } from '../../../shared/types/project'
 
 // Only the lead states the project's fabrication limits (null clears them).
-export default defineEventHandler(async (event) => {
+export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   await requireProjectRole(event, id, ['lead'], 'setting the project\'s fabrication limits')
   const body = await readValidatedBody(event, zodValidator(projectPatchSchema))
