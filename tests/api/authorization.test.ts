@@ -69,6 +69,7 @@ const MATRIX: Record<string, Row> = {
   'GET /api/projects': R(200, 200, 200, 200, 401, 200),
   'POST /api/projects': EDIT(201), // target: teamId of team A / team B
   'GET /api/projects/:id': READ(),
+  'PATCH /api/projects/:id': LEAD(200), // the project's fabrication limits: lead only
   'GET /api/projects/:id/designs': READ(),
   'POST /api/projects/:id/designs': EDIT(201),
   'GET /api/designs/:id': READ(),
@@ -278,6 +279,7 @@ const REQUESTS: Record<string, Build> = {
   'GET /api/projects': () => get('/api/projects'),
   'POST /api/projects': (t) => post('/api/projects', { teamId: t.id, name: unique('Project') }),
   'GET /api/projects/:id': (t) => get(`/api/projects/${t.projectId}`),
+  'PATCH /api/projects/:id': (t) => ({ method: 'PATCH', path: `/api/projects/${t.projectId}`, json: { limits: { maxSagUm: 8 } } }),
   'GET /api/projects/:id/designs': (t) => get(`/api/projects/${t.projectId}/designs`),
   'POST /api/projects/:id/designs': (t) => post(`/api/projects/${t.projectId}/designs`, { name: unique('Design'), scenario }),
   'GET /api/designs/:id': (t) => get(`/api/designs/${t.designId}`),
