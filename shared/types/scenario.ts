@@ -409,3 +409,11 @@ export function fresnelModeOf(scenario: unknown): FresnelMode | undefined {
   const parsed = fresnelModeSchema.safeParse(mode)
   return parsed.success ? parsed.data : undefined
 }
+
+/** An index as shown to a user: a constant as it is; a formula or table by its kind and its n at 550 nm. */
+export function describeIndex(m: IndexModel | undefined): string {
+  if (m === undefined) return '—'
+  if (typeof m === 'number') return String(m)
+  const kind = 'sellmeier' in m ? 'Sellmeier' : 'cauchy' in m ? 'Cauchy' : 'n,k table'
+  return `${kind} (${indexAt(m, DEFAULT_WAVELENGTH_NM).toFixed(4)} at ${DEFAULT_WAVELENGTH_NM} nm)`
+}
