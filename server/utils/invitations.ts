@@ -5,7 +5,7 @@ import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm'
 import { createError } from 'h3'
 import { generateIdFromEntropySize } from 'lucia'
 import { invitations, memberships, teams, users, type Role } from '../db/schema'
-import type { Db } from './db'
+import type { Db, DbOrTx } from './db'
 import { composeMail, publicBaseUrl, sendMail } from './mail'
 import { hashPassword } from './password'
 import { hashSecret, newSecret } from './secrets'
@@ -13,7 +13,7 @@ import { hashSecret, newSecret } from './secrets'
 export const INVITATION_DAYS = 7
 
 /** 409 when the team already has an open (unused, not withdrawn, unexpired) invitation for this address. */
-export async function assertNoPendingInvitation(db: Db, teamId: string, email: string) {
+export async function assertNoPendingInvitation(db: DbOrTx, teamId: string, email: string) {
   const [open] = await db.select({ id: invitations.id }).from(invitations)
     .where(and(eq(invitations.teamId, teamId), sql`lower(${invitations.email}) = lower(${email})`,
       isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
@@ -27,9 +27,15 @@ export async function createInvitation(db: Db, opts: { teamId: string; email: st
   const token = newSecret()
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 86_400_000)
   const [team] = await db.select().from(teams).where(eq(teams.id, opts.teamId))
-  const [inv] = await db.insert(invitations).values({
-    teamId: opts.teamId, email: opts.email, role: opts.role, tokenHash: hashSecret(token), invitedBy: opts.invitedBy.id, expiresAt,
-  }).returning()
+  // Check and insert under a lock on (team, address), so two invitations sent at the same instant cannot both pass.
+  const inv = await db.transaction(async (tx) => {
+    await tx.execute(sql`SELECT pg_advisory_xact_lock(hashtext(${`invitation:${opts.teamId}:${opts.email.toLowerCase()}`}))`)
+    await assertNoPendingInvitation(tx, opts.teamId, opts.email)
+    const [row] = await tx.insert(invitations).values({
+      teamId: opts.teamId, email: opts.email, role: opts.role, tokenHash: hashSecret(token), invitedBy: opts.invitedBy.id, expiresAt,
+    }).returning()
+    return row
+  })
   const url = `${publicBaseUrl(opts.baseUrl)}/invitations/${token}`
   try {
     // The subject is fixed text: names the inviter chose stay in the body, where they read as quoted names.

@@ -68,6 +68,15 @@ describe('invitations', () => {
     expect((await c.post(`/api/teams/${teamId}/invitations`, { email, role: 'viewer' })).status).toBe(201)
   })
 
+  it('five identical invitations sent at the same instant: one 201, four 409 (checked under a lock on team and address)', async () => {
+    const { c, teamId } = await lead('race', '198.51.100.12')
+    const email = uniqueEmail('raced')
+    const replies = await Promise.all(Array.from({ length: 5 }, () => c.post(`/api/teams/${teamId}/invitations`, { email, role: 'viewer' })))
+    expect(replies.map((r) => r.status).sort()).toEqual([201, 409, 409, 409, 409])
+    const { rows } = await pool.query('SELECT count(*)::int AS n FROM invitations WHERE team_id = $1 AND lower(email) = lower($2)', [teamId, email])
+    expect(rows[0].n).toBe(1)
+  })
+
   it('the subject carries no text the inviter chose', async () => {
     const { c, teamId } = await lead('subject', '198.51.100.11')
     const email = uniqueEmail('subj')
