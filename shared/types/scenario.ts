@@ -297,6 +297,11 @@ const FIELD_WORDS: Record<string, [string, string]> = {
   'emitter.index': ['Emitter index', ''],
   'emitter.angularProfile': ['Emission profile', ''],
   'emitter.angularProfile.table': ['Emission profile table', ''],
+  'emitter.spectrum': ['Emission spectrum', ''],
+  'emitter.spectrum.wavelengthNm': ['Emission wavelength', 'nm'],
+  'emitter.spectrum.peakNm': ['Spectrum peak', 'nm'],
+  'emitter.spectrum.fwhmNm': ['Spectrum width (FWHM)', 'nm'],
+  'emitter.spectrum.table': ['Emission spectrum table', ''],
   'emitter.source': ['Source area', ''],
   'emitter.source.shape': ['Source area', ''],
   'emitter.source.radiusUm': ['Source radius', 'µm'],
@@ -321,16 +326,40 @@ const FIELD_WORDS: Record<string, [string, string]> = {
   'trace.maxEvents': ['Event limit per ray', ''],
 }
 
-/** Field name (and unit) for a path; inside a table (profile rows) the table's name and the row. */
+/** Column names of the tables a scenario holds, by the table's field (index tables: wavelength, n, k). */
+function tableColumns(key: string): readonly string[] {
+  if (key.endsWith('.index')) return ['wavelength (nm)', 'n', 'k']
+  if (key === 'emitter.spectrum') return ['wavelength (nm)', 'relative power']
+  if (key === 'emitter.angularProfile') return ['θ (°)', 'relative intensity']
+  if (key === 'lensArray.profile') return ['r (µm)', 'height (µm)']
+  return []
+}
+
+const PART_WORDS: Record<string, string> = { sellmeier: 'Sellmeier formula', cauchy: 'Cauchy formula' }
+
+/**
+ * Field name (and unit) for a path; inside a formula or table the part, row and column, e.g. "Lens index table
+ * row 1, k" or "Substrate index Sellmeier formula B".
+ */
 function fieldWords(path: ReadonlyArray<PropertyKey>): [string, string] {
   for (let n = path.length; n > 0; n--) {
     const key = path.slice(0, n).map(String).join('.')
     const w = FIELD_WORDS[key]
-    if (w) {
-      if (n === path.length) return w
-      const row = path[n]
-      return typeof row === 'number' ? [`${w[0]} row ${row + 1}`, ''] : [w[0], '']
+    if (!w) continue
+    if (n === path.length) return w
+    const rest = path.slice(n)
+    const base = key.endsWith('.table') ? key.slice(0, -'.table'.length) : key
+    const cols = tableColumns(base)
+    let words = w[0]
+    let numbers = 0
+    for (const part of rest) {
+      if (typeof part === 'number') {
+        words += numbers === 0 ? ` row ${part + 1}` : `, ${cols[part] ?? `column ${part + 1}`}`
+        numbers++
+      } else if (part === 'table') words += ' table'
+      else words += ` ${PART_WORDS[String(part)] ?? String(part)}`
     }
+    return [words, '']
   }
   return [pathText(path), '']
 }
@@ -369,12 +398,12 @@ export function scenarioErrorMessages(error: z.ZodError, data?: unknown): string
     switch (iss.code) {
       case 'too_small': {
         const min = Number(iss.minimum)
-        if (iss.origin === 'array') return `${where} must have at least ${min} points${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
+        if (iss.origin === 'array') return `${where} must have at least ${min} rows${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
         return `${where} must be ${iss.inclusive ? 'at least' : 'above'} ${min}${u}${gotText}`
       }
       case 'too_big': {
         const max = Number(iss.maximum)
-        if (iss.origin === 'array') return `${where} must have at most ${max} points`
+        if (iss.origin === 'array') return `${where} must have at most ${max} rows`
         return `${where} must be ${iss.inclusive ? 'at most' : 'below'} ${max}${u}${gotText}`
       }
       case 'invalid_type':
@@ -390,7 +419,8 @@ export function scenarioErrorMessages(error: z.ZodError, data?: unknown): string
       case 'unrecognized_keys':
         return `${where} has unknown field(s): ${iss.keys.join(', ')}`
       case 'custom':
-        return `${where} ${iss.message}`
+        // "Sag h must be at most …" reads on; a message that is a sentence of its own ("the table covers …") gets a colon
+        return `${where}${/^(must|is|has|needs|cannot)\b/.test(iss.message) ? ' ' : ': '}${iss.message}`
       default:
         return `${where}: ${iss.message}${gotText}`
     }

@@ -26,7 +26,7 @@ afterAll(async () => {
 
 // Every table of server/db/schema.ts, sorted.
 const TABLES = [
-  'api_tokens', 'data_tables', 'designs', 'invitations', 'mailbox_messages', 'memberships', 'password_resets',
+  'action_events', 'api_tokens', 'data_tables', 'designs', 'invitations', 'mailbox_messages', 'memberships', 'password_resets',
   'projects', 'run_batches', 'run_cells', 'runs', 'sessions', 'shortlist_comments', 'shortlist_entries',
   'shortlist_events', 'sign_in_failures', 'teams', 'users',
 ]

@@ -43,7 +43,7 @@ describe('work per ray and per batch', () => {
       name: 'Endless', scenario: { ...cavity, trace: { ...cavity.trace, maxEvents: 1e7 } },
     })
     expect(r.status).toBe(400)
-    expect(r.body.message).toMatch(/trace\.maxEvents must be at most 100000/)
+    expect(r.body.message).toMatch(/Event limit per ray must be at most 100000/)
   })
 
   it('a runaway geometry is refused at creation (pilot trace) with a plain reason, and nothing is stored', async () => {

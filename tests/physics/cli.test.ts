@@ -33,7 +33,7 @@ describe('simulate CLI', () => {
     expect(a.seed).toBe(1301)
     for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'enhancementStdErr', 'losses', 'intensity', 'luminance', 'planar']) expect(b[k]).toEqual(a[k])
   })
-  it('accepts Fresnel mode "polarized" (the result says so; 1 and 2 threads agree, seed 1302) and refuses an unknown mode naming trace.fresnel', () => {
+  it('accepts Fresnel mode "polarized" (the result says so; 1 and 2 threads agree, seed 1302) and refuses an unknown mode naming the Fresnel mode', () => {
     writeFileSync(`${dir}/pol.json`, JSON.stringify({ ...example, trace: { ...example.trace, fresnel: 'polarized' } }))
     const args = (t: string) => ['tsx', 'scripts/simulate.ts', `${dir}/pol.json`, '--rays', '30000', '--seed', '1302', '--threads', t, '--json']
     const a = JSON.parse(execFileSync('npx', args('1'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
@@ -46,7 +46,7 @@ describe('simulate CLI', () => {
     writeFileSync(`${dir}/badmode.json`, JSON.stringify({ ...example, trace: { ...example.trace, fresnel: 'polarised-ish' } }))
     const bad = run([`${dir}/badmode.json`])
     expect(bad.status).toBe(2)
-    expect(bad.stderr).toContain('trace.fresnel')
+    expect(bad.stderr).toContain('Fresnel mode must be one of')
   })
   it('exit 2 with the field named for an invalid scenario, bad JSON, a missing file, a bad option', () => {
     writeFileSync(`${dir}/sag.json`, JSON.stringify({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } }))

@@ -29,7 +29,7 @@ describe('per-ray limit', () => {
   it('maxEvents above 100 000 is refused with the field named', () => {
     const r = parseScenario({ ...cavity, trace: { ...cavity.trace, maxEvents: 1e7 } })
     expect(r.ok).toBe(false)
-    expect(JSON.stringify(r)).toMatch(/trace\.maxEvents must be at most 100000: got 10000000/)
+    expect(JSON.stringify(r)).toMatch(/Event limit per ray must be at most 100000: got 10000000/)
     expect(scenarioSchema.safeParse({ ...cavity, trace: { ...cavity.trace, maxEvents: 100_000 } }).success).toBe(true)
   })
 })

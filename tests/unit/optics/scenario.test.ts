@@ -64,7 +64,7 @@ describe('scenario schema', () => {
       'Base diameter D must be at most the pitch p = 10 µm (caps may touch, not overlap): got 11 µm',
     ])
     expect(errors({ ...example, lensArray: { ...example.lensArray, shape: 'conic' } })).toEqual(['Conic constant k is required for a conic cap'])
-    expect(errors({ ...example, emitter: { ...example.emitter, angularProfile: { table: [[0, 1], [0, 2]] } } })[0]).toMatch(/^Emission profile table row 2 θ must increase/)
+    expect(errors({ ...example, emitter: { ...example.emitter, angularProfile: { table: [[0, 1], [0, 2]] } } })[0]).toMatch(/^Emission profile table row 2, θ \(°\): θ must increase/)
   })
   it('accepts source shapes and profiles of every kind', () => {
     for (const source of [{ shape: 'disc', radiusUm: 1 }, { shape: 'rectangle', widthUm: 3, heightUm: 4 }]) {

@@ -54,16 +54,16 @@ describe('spectrum sampling and the packed tables', () => {
   })
 })
 
-describe('bad spectra and materials are refused with the field named', () => {
+describe('bad spectra and materials are refused with the field named in the trade\'s words', () => {
   const refused = (input: unknown, field: string, words: string) => {
     const r = parseScenario(input)
     expect(r.ok).toBe(false)
     if (!r.ok) expect(r.errors.join('\n'), r.errors.join('\n')).toMatch(new RegExp(`${field.replace(/\./g, '\\.')}.*${words.replace(/\./g, '\\.')}`))
   }
-  it('negative wavelength', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { wavelengthNm: -530 } } }, 'emitter.spectrum.wavelengthNm', 'must be at least 200: got -530'))
-  it('a spectrum table with one row', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { table: [[530, 1]] } } }, 'emitter.spectrum.table', 'at least 2 entries: got 1'))
-  it('an index table with one row', () => refused({ ...base, substrate: { index: { table: [[530, 1.5, 0]] }, thicknessUm: 100 } }, 'substrate.index.table', 'at least 2 entries: got 1'))
-  it('a Sellmeier formula giving n < 1 inside the spectrum', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { peakNm: 500, fwhmNm: 50 } }, substrate: { index: { sellmeier: { B: [-0.5, 0, 0], C: [0.01, 0, 0] } }, thicknessUm: 100 } }, 'substrate.index', 'Sellmeier formula gives n'))
-  it('k < 0', () => refused({ ...base, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, index: { table: [[400, 1.5, -0.001], [700, 1.5, 0]] } } }, 'lensArray.index.table\\[0\\]\\[2\\]', 'must be at least 0: got -0.001'))
-  it('an index table that does not cover the spectrum', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { table: [[380, 1], [780, 1]] } }, substrate: { index: { table: [[400, 1.5, 0], [700, 1.5, 0]] }, thicknessUm: 100 } }, 'substrate.index', 'covers 400–700 nm'))
+  it('negative wavelength', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { wavelengthNm: -530 } } }, 'Emission wavelength', 'must be at least 200 nm: got -530 nm'))
+  it('a spectrum table with one row', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { table: [[530, 1]] } } }, 'Emission spectrum table', 'at least 2 rows: got 1'))
+  it('an index table with one row', () => refused({ ...base, substrate: { index: { table: [[530, 1.5, 0]] }, thicknessUm: 100 } }, 'Substrate index table', 'at least 2 rows: got 1'))
+  it('a Sellmeier formula giving n < 1 inside the spectrum', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { peakNm: 500, fwhmNm: 50 } }, substrate: { index: { sellmeier: { B: [-0.5, 0, 0], C: [0.01, 0, 0] } }, thicknessUm: 100 } }, 'Substrate index', 'Sellmeier formula gives n'))
+  it('k < 0', () => refused({ ...base, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, index: { table: [[400, 1.5, -0.001], [700, 1.5, 0]] } } }, 'Lens index table row 1, k', 'must be at least 0: got -0.001'))
+  it('an index table that does not cover the spectrum', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { table: [[380, 1], [780, 1]] } }, substrate: { index: { table: [[400, 1.5, 0], [700, 1.5, 0]] }, thicknessUm: 100 } }, 'Substrate index', 'covers 400–700 nm'))
 })
