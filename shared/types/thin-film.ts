@@ -57,3 +57,21 @@ export const thinFilmSchema = z
 export type ThinFilm = z.infer<typeof thinFilmSchema>
 export type ThinFilmInput = z.input<typeof thinFilmSchema>
 export type OpticalMaterial = z.infer<typeof opticalMaterialSchema>
+
+/**
+ * A green bottom-emitting stack used as the reference case (round, invented values of the usual kind: glass | ITO
+ * 100 nm | HTL 40 | EML 20 | ETL 50 | an Al-like cathode n = 0.96 + 6.69i, emitter 10 nm into the EML, isotropic
+ * dipoles). The physics tests and the thin-film bench trace the same stack.
+ */
+export const REFERENCE_GREEN_STACK: ThinFilmInput = {
+  layers: [
+    { name: 'ITO', thicknessNm: 100, material: { n: 1.9, k: 0.01 } },
+    { name: 'HTL', thicknessNm: 40, material: { n: 1.75, k: 0 } },
+    { name: 'EML', thicknessNm: 20, material: { n: 1.75, k: 0 }, emitting: true },
+    { name: 'ETL', thicknessNm: 50, material: { n: 1.75, k: 0 } },
+  ],
+  cathode: { material: { n: 0.96, k: 6.69 } },
+  emitterPositionNm: 10,
+  horizontalDipoleFraction: 2 / 3,
+  radiativeEfficiency: 1,
+}

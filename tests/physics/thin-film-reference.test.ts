@@ -5,21 +5,10 @@
 // 85, 115205 (2012)); the first cavity maximum near 50–80 nm ETL for green on Al/Ag-like cathodes (common practice).
 import { describe, expect, it } from 'vitest'
 import { mkdirSync, writeFileSync } from 'node:fs'
-import { thinFilmSchema, type ThinFilm } from '../../shared/types/thin-film'
+import { REFERENCE_GREEN_STACK, thinFilmSchema, type ThinFilm } from '../../shared/types/thin-film'
 import { thinFilmAt } from '../../shared/optics/thinfilm'
 
-const reference = thinFilmSchema.parse({
-  layers: [
-    { name: 'ITO', thicknessNm: 100, material: { n: 1.9, k: 0.01 } },
-    { name: 'HTL', thicknessNm: 40, material: { n: 1.75, k: 0 } },
-    { name: 'EML', thicknessNm: 20, material: { n: 1.75, k: 0 }, emitting: true },
-    { name: 'ETL', thicknessNm: 50, material: { n: 1.75, k: 0 } },
-  ],
-  cathode: { material: { n: 0.96, k: 6.69 } },
-  emitterPositionNm: 10,
-  horizontalDipoleFraction: 2 / 3,
-  radiativeEfficiency: 1,
-})
+const reference = thinFilmSchema.parse(REFERENCE_GREEN_STACK)
 const optics = { glassIndex: 1.5, outsideIndex: 1 }
 const withEtl = (tf: ThinFilm, nm: number): ThinFilm => ({ ...tf, layers: tf.layers.map((l, i) => (i === 3 ? { ...l, thicknessNm: nm } : l)) })
 const record: Record<string, unknown> = {}
