@@ -61,9 +61,20 @@ afterAll(async () => {
 
 async function pickTrace(csv: string, fileName: string) {
   await page.goto(`${baseUrl}/projects/${projectId}`)
-  await page.locator('input[type=file]').waitFor()
-  await page.locator('input[type=file]').setInputFiles({ name: fileName, mimeType: 'text/csv', buffer: Buffer.from(csv) })
-  await page.getByTestId('trace-fit').waitFor()
+  const input = page.locator('input[type=file]')
+  await input.waitFor()
+  // The server-rendered input is there before the page is interactive, and a file picked before hydration reaches no
+  // handler (seen once in a clean-clone run): wait for the mounted app, then pick again if the fit panel stays away.
+  await page.waitForFunction(() => !!(document.querySelector('#__nuxt') as { __vue_app__?: unknown } | null)?.__vue_app__)
+  for (let attempt = 1; ; attempt++) {
+    await input.setInputFiles({ name: fileName, mimeType: 'text/csv', buffer: Buffer.from(csv) })
+    try {
+      await page.getByTestId('trace-fit').waitFor({ timeout: 5000 })
+      return
+    } catch (err) {
+      if (attempt === 3) throw err
+    }
+  }
 }
 
 describe('a noisy stylus trace', () => {
