@@ -11,6 +11,89 @@ export const lossesSchema = z.object({
   waveguided: z.number(),
   trapped: z.number(),
   unresolved: z.number(),
+  /** Thin-film source only: light that came back down to the layer stack and was absorbed there (1 − R_s/R_p). */
+  stackAbsorbed: z.number().optional(),
+})
+
+const perBand = z.array(z.number().nullable())
+
+/**
+ * Colour and photometry over viewing angle (a scenario with `emitter.spectrum` only). Polar bands of bandWidthDeg
+ * (0–90°), wavelength bins of wavelengthBinNm (380–780 nm). CIE 1931 2° observer; u′v′ = CIE 1976 UCS. Per band a
+ * value is null when the band holds no rays. Δu′v′ against the on-axis band (the first). Standard errors by the
+ * delta method over the multinomial band × wavelength counts (stdErrMethod says so).
+ */
+export const colourSchema = z.object({
+  bandWidthDeg: z.number(),
+  bandCentersDeg: z.array(z.number()),
+  x: perBand,
+  y: perBand,
+  uPrime: perBand,
+  vPrime: perBand,
+  uPrimeStdErr: perBand,
+  vPrimeStdErr: perBand,
+  deltaUv: perBand,
+  deltaUvStdErr: perBand,
+  /** Photopic luminance over that of a Lambertian emitter of the same launched luminous flux, per band. */
+  photopicRelative: perBand,
+  photopicRelativeStdErr: perBand,
+  /** Largest Δu′v′ over the bands with centres in 0–60°, with the σ of that band. */
+  maxDeltaUvTo60: z.number(),
+  maxDeltaUvTo60StdErr: z.number(),
+  /** Photopic relative luminance on axis (the on-axis cone, as luminance.onAxisRelative). */
+  photopicOnAxisRelative: z.number(),
+  photopicOnAxisRelativeStdErr: z.number(),
+  /** Luminous efficacy of the extracted radiation: 683 lm/W · ∫V(λ)Φ(λ)dλ / ∫Φ(λ)dλ. */
+  luminousEfficacyLmPerW: z.number(),
+  luminousEfficacyStdErrLmPerW: z.number(),
+  wavelengthBinNm: z.number(),
+  wavelengthCentersNm: z.array(z.number()),
+  /** Spectra leaving at a few angles (band centres nearest to anglesDeg), each normalised to its own peak = 1. */
+  spectra: z.object({ anglesDeg: z.array(z.number()), relative: z.array(z.array(z.number())) }),
+  stdErrMethod: z.string(),
+})
+
+const modeSplitSchema = z.object({
+  /** Fractions of all dipole power (sum 1 with the others of the block). */
+  air: z.number(),
+  /** Reached the glass but not air: trapped / absorbed in the glass or the film, or lost back in the stack. */
+  glass: z.number(),
+  waveguided: z.number(),
+  evanescent: z.number(),
+  /** Absorbed in the stack's layers at emission (before reaching the glass). */
+  absorbed: z.number(),
+  airStdErr: z.number().optional(),
+  glassStdErr: z.number().optional(),
+})
+
+/**
+ * Thin-film source (`emitter.thinFilm`) only. `extraction` is then the fraction of all dipole power that reaches
+ * air (outcoupling efficiency). The flat split is exact (quadrature, glass incoherent); the film split is traced.
+ */
+export const thinFilmResultSchema = z.object({
+  /** The wavelength the figures below are given at (the spectrum's peak, or 550 nm). */
+  wavelengthNm: z.number(),
+  purcellFactor: z.number(),
+  /** q·F/(1 − q + q·F). */
+  effectiveRadiativeEfficiency: z.number(),
+  horizontalDipoleFraction: z.number(),
+  modes: z.object({ flat: modeSplitSchema, film: modeSplitSchema }),
+  /**
+   * Power dissipation spectra K(u) at wavelengthNm, u = in-plane wavevector / k in the emitting layer, normalised
+   * so a dipole in the infinite emitting medium gives 1; mixed = Θ·(TE,h + TM,h) + (1 − Θ)·TM,v.
+   * uGlass = n_glass/n_e and uAir = 1/n_e mark the region boundaries (with u = 1).
+   */
+  dissipation: z.object({
+    u: z.array(z.number()),
+    teHorizontal: z.array(z.number()),
+    tmHorizontal: z.array(z.number()),
+    tmVertical: z.array(z.number()),
+    mixed: z.array(z.number()),
+    uAir: z.number(),
+    uGlass: z.number(),
+  }),
+  /** Power into the glass per steradian per unit dipole power, by polar angle in the glass, s and p. */
+  glassEmission: z.object({ thetaDeg: z.array(z.number()), s: z.array(z.number()), p: z.array(z.number()) }),
 })
 
 export const resultSchema = z.object({
@@ -55,9 +138,15 @@ export const resultSchema = z.object({
     halfLuminanceAngleDeg: z.number().nullable(),
     /** Its standard error (delta method from the window counts and the on-axis estimate); null with it. */
     halfLuminanceAngleStdErrDeg: z.number().nullable(),
+    /** Reciprocal (backward-traced) luminance at chosen viewing directions, L/L_Lambertian with σ; absent if not asked. */
+    directions: z
+      .array(z.object({ thetaDeg: z.number(), phiDeg: z.number(), relative: z.number(), relativeStdErr: z.number() }))
+      .optional(),
   }),
   /** The planar companion (the same stack without lenses, traced in the same run); for a planar device, itself. */
   planar: z.object({
+    /** How the companion was computed: by quadrature of the flat stack (exact, no rays) or traced; absent = traced. */
+    method: z.enum(['quadrature', 'traced']).optional(),
     extraction: z.number(),
     extractionStdErr: z.number(),
     losses: lossesSchema,
@@ -89,8 +178,18 @@ export const resultSchema = z.object({
   /** extraction / planar.extraction; σ from (σE/E)² = (σ1/η1)² + (σ2/η2)² (independent streams). */
   enhancement: z.number(),
   enhancementStdErr: z.number(),
+  /** Colour over angle (with `emitter.spectrum`), else absent or null; the planar companion's is planarColour. */
+  colour: colourSchema.nullable().optional(),
+  planarColour: colourSchema.nullable().optional(),
+  /** colour.photopicOnAxisRelative over planarColour's (with a spectrum), σ as for `enhancement`. */
+  photopicOnAxisGain: z.number().nullable().optional(),
+  photopicOnAxisGainStdErr: z.number().nullable().optional(),
+  /** Thin-film source only. */
+  thinFilm: thinFilmResultSchema.nullable().optional(),
 })
 
 export type TraceResult = z.infer<typeof resultSchema>
+export type ColourResult = z.infer<typeof colourSchema>
+export type ThinFilmResult = z.infer<typeof thinFilmResultSchema>
 export type Losses = z.infer<typeof lossesSchema>
 export { fractionWithErr }
