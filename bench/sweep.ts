@@ -19,14 +19,14 @@ await migrateDatabase(url)
 process.env.DATABASE_URL = url
 process.env.LENSFIELD_BATCH_RAYS ??= '200000'
 const { prepareWorker } = await import('../scripts/trace-pool')
-process.env.LENSFIELD_TRACE_WORKER ??= await prepareWorker()
+process.env.LENSFIELD_TRACE_WORKER = await prepareWorker()
 
 // Imported after DATABASE_URL is set: these modules read it on first use.
 const { useDb, usePool } = await import('../server/utils/db')
 const schema = await import('../server/db/schema')
-const { createRun } = await import('../server/jobs/runs')
-const { startBatchWorker } = await import('../server/jobs/worker')
-const { stopBoss } = await import('../server/jobs/boss')
+const { createRun } = await import('../server/runs/create')
+const { startBatchWorker } = await import('../server/queue/worker')
+const { stopBoss } = await import('../server/queue/boss')
 
 const db = useDb()
 const userId = `bench-${randomUUID()}`

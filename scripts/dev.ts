@@ -24,7 +24,7 @@ await pool.end()
 // Mail goes to the fake SMTP server on loopback (listed at /dev/mailbox) unless a real one is configured.
 const mailbox = process.env.LENSFIELD_SMTP_HOST ? undefined : await startFakeSmtp(db.url)
 // The dev server's embedded worker loads the bundle of workers/trace.ts (rebuilt when sources are newer).
-const traceWorker = process.env.LENSFIELD_TRACE_WORKER ?? await prepareWorker()
+const traceWorker = await prepareWorker()
 nuxt = startChild(bin('nuxt'), ['dev', '--host', process.env.HOST ?? '127.0.0.1', ...process.argv.slice(2)], {
   ...process.env,
   LENSFIELD_TRACE_WORKER: traceWorker,

@@ -4,10 +4,11 @@
 import { existsSync, readdirSync, renameSync, statSync } from 'node:fs'
 import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { Piscina } from 'piscina'
+import type { Piscina } from 'piscina'
 import type { Scenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
 import { createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, type RunTallies } from '../shared/optics'
+import { createTracePool, TRACE_WORKER_ENV } from '../server/queue/pool'
 
 const root = fileURLToPath(new URL('..', import.meta.url))
 
@@ -15,11 +16,11 @@ const root = fileURLToPath(new URL('..', import.meta.url))
  * The worker file. By default the bundle dist/workers/trace.mjs, rebuilt first when any source under shared/ or
  * workers/ is newer (one esbuild call, ~0.3 s): a bundled worker runs the hot loop ~1.6× faster than the same
  * TypeScript loaded module by module through tsx in the worker (measured 2026-12-01, 390k vs 235k rays/s), and
- * vitest cannot give workers a TypeScript loader at all. LENSFIELD_WORKER=ts uses workers/trace.ts (needs tsx in
- * the parent), LENSFIELD_WORKER=<path> a given compiled file.
+ * vitest cannot give workers a TypeScript loader at all. LENSFIELD_TRACE_WORKER=ts uses workers/trace.ts (needs tsx in
+ * the parent), LENSFIELD_TRACE_WORKER=<path> a given compiled file (the same variable the server's pool reads).
  */
 export async function prepareWorker(): Promise<string> {
-  const forced = process.env.LENSFIELD_WORKER
+  const forced = process.env[TRACE_WORKER_ENV]
   if (forced === 'ts') return `${root}workers/trace.ts`
   if (forced) return forced
   const built = `${root}dist/workers/trace.mjs`
@@ -48,20 +49,9 @@ function newestSourceMtimeMs(): number {
   return newest
 }
 
-/** The worker file last prepared (prepareWorker), else the TypeScript entry. */
-let preparedWorker: string | null = null
-export function workerFilename(): string {
-  return preparedWorker ?? process.env.LENSFIELD_WORKER ?? `${root}workers/trace.ts`
-}
-
-/** A pool over the prepared worker (call prepareWorker first; createTracePoolReady does both). */
-export function createTracePool(threads: number): Piscina {
-  return new Piscina({ filename: workerFilename(), minThreads: threads, maxThreads: threads, idleTimeout: 60_000 })
-}
-
+/** A pool (server/queue/pool.ts, the job system's own) over the prepared worker. */
 export async function createTracePoolReady(threads: number): Promise<Piscina> {
-  preparedWorker = await prepareWorker()
-  return createTracePool(threads)
+  return createTracePool(threads, await prepareWorker())
 }
 
 export interface PoolRunOptions {

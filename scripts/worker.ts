@@ -2,9 +2,9 @@
 // database the web server uses); it takes ray batches from the queue until it is stopped (SIGINT/SIGTERM), then
 // finishes or hands back what it was tracing.
 import { parseArgs } from 'node:util'
-import { stopBoss } from '../server/jobs/boss'
-import { defaultThreads } from '../server/jobs/pool'
-import { startBatchWorker } from '../server/jobs/worker'
+import { stopBoss } from '../server/queue/boss'
+import { defaultThreads } from '../server/queue/pool'
+import { startBatchWorker } from '../server/queue/worker'
 import { isDatabaseUnavailable } from '../server/utils/unavailable'
 import { prepareWorker } from './trace-pool'
 
@@ -38,7 +38,7 @@ process.on('unhandledRejection', (err) => {
 })
 
 // Run from source: the pool loads the bundle of workers/trace.ts, rebuilt here when sources are newer.
-process.env.LENSFIELD_TRACE_WORKER ??= await prepareWorker()
+process.env.LENSFIELD_TRACE_WORKER = await prepareWorker()
 const worker = await startBatchWorker({ threads })
 console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)
 let stopping = false

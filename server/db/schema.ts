@@ -3,6 +3,7 @@
 import { sql } from 'drizzle-orm'
 import { bigint, boolean, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
 import type { ProjectLimits } from '../../shared/types/project'
+import type { CellSummary } from '../../shared/types/figures'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
 export const ROLES = roleEnum.enumValues
@@ -139,7 +140,7 @@ export const runCells = pgTable('run_cells', {
   deviceTally: bytea('device_tally'),
   planarTally: bytea('planar_tally'),
   /** Summary for lists and maps: extraction, enhancement, on-axis luminance with σ, losses (no arrays). */
-  summary: jsonb('summary'),
+  summary: jsonb('summary').$type<CellSummary>(),
   /** 'rays' (fixed count done), 'target' (precision reached) or 'cap' (ray cap hit before the target). */
   stopReason: text('stop_reason'),
   error: text('error'),

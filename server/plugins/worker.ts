@@ -1,8 +1,8 @@
 // The embedded worker: the web server also traces queued batches, so `npm start` alone runs sweeps. Set
 // LENSFIELD_EMBEDDED_WORKER=0 to serve pages only (when dedicated `npm run worker` machines do the tracing).
 // Nitro's close hook stops taking jobs, lets running batches finish for a while, then closes the queue.
-import { stopBoss } from '../jobs/boss'
-import { startBatchWorker, type BatchWorker } from '../jobs/worker'
+import { stopBoss } from '../queue/boss'
+import { startBatchWorker, type BatchWorker } from '../queue/worker'
 import { closeProgressRelay } from '../utils/progress'
 
 export default defineNitroPlugin((nitroApp) => {

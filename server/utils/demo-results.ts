@@ -11,8 +11,9 @@ import { ENGINE_VERSION } from '../../shared/optics/version'
 import { scenarioSchema } from '../../shared/types/scenario'
 import { cellSeed, expandSweep, type SweepAxis } from '../../shared/types/sweep'
 import { designs, runBatches, runCells, runs, shortlistComments, shortlistEntries, shortlistEvents, users } from '../db/schema'
-import { bestCell, tallyToBytes } from '../jobs/runs'
-import { cellSummary } from '../jobs/worker'
+import { bestCellIndex, cellSummaryOf } from '../../shared/types/figures'
+import { tallyToBytes } from '../runs/db'
+import { tracedRaysPerRay } from '../runs/plan'
 import type { Db } from './db'
 import { DEMO_PROJECT, DEMO_TEAM } from './demo'
 
@@ -80,11 +81,11 @@ async function ensureRun(db: Db, projectId: string, spec: { name: string; design
     if (!c.feasible) return { cell: c, tallies: null, summary: null, seed: cellSeed(spec.seed, c.index) }
     const seed = kind === 'single' ? spec.seed : cellSeed(spec.seed, c.index)
     const tallies = traceCell(c.scenario, spec.rays, seed)
-    return { cell: c, tallies, summary: cellSummary(summarize(tallies, seed)), seed }
+    return { cell: c, tallies, summary: cellSummaryOf(summarize(tallies, seed)), seed }
   })
   const figure = 'enhancement'
-  const best = bestCell(traced.map((t) => ({ cellIndex: t.cell.index, status: t.summary ? 'done' as const : 'infeasible' as const, summary: t.summary })), figure)
-  const raysOf = (t: (typeof traced)[number]) => (t.tallies ? spec.rays * (t.tallies.planar ? 2 : 1) : 0)
+  const best = bestCellIndex(traced.map((t) => ({ cellIndex: t.cell.index, status: t.summary ? 'done' as const : 'infeasible' as const, summary: t.summary })), figure)
+  const raysOf = (t: (typeof traced)[number]) => (t.tallies && t.cell.feasible ? spec.rays * tracedRaysPerRay(t.cell.scenario) : 0)
   const raysTotal = traced.reduce((n, t) => n + raysOf(t), 0)
   const authorId = await ctx.userId(spec.author)
   const now = new Date()

@@ -29,11 +29,6 @@ function createTransport(): Transporter | null {
   })
 }
 
-export function mailConfigured(): boolean {
-  transport ??= createTransport()
-  return transport !== null
-}
-
 export function publicBaseUrl(fallback?: string): string {
   return (process.env.LENSFIELD_PUBLIC_URL || fallback || 'http://127.0.0.1:3000').replace(/\/+$/, '')
 }

@@ -2,9 +2,9 @@
 // anywhere NOTIFY with a run id, and the run's state is read once and handed to every open stream of that run.
 // Bursts of notifications (many batches landing at once) are folded into one read per run every 200 ms at the
 // most; reads asked for while one is under way share it. No stream holds a database connection.
-import { listen, type Listener } from '../jobs/listen'
-import { CHANNEL_PROGRESS } from '../jobs/config'
-import { runProgress } from '../jobs/runs'
+import { listen, type Listener } from '../queue/listen'
+import { CHANNEL_PROGRESS } from '../queue/config'
+import { runProgress } from '../runs/progress'
 
 export type RunState = NonNullable<Awaited<ReturnType<typeof runProgress>>>
 type Callback = (state: RunState) => void

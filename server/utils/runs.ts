@@ -1,12 +1,14 @@
 // Access to runs and sweeps (a run belongs to a project; the project's team decides) and the route-side glue to the
-// job system in server/jobs. Another team's run is 404, like its project.
+// run domain in server/runs. Another team's run is 404, like its project.
 import { and, asc, desc, eq } from 'drizzle-orm'
 import { createError, type H3Event } from 'h3'
 import type { User } from 'lucia'
 import { memberships, projects, runCells, runs, type Project, type Role, type Run } from '../db/schema'
 import { summarize, type RunTallies } from '../../shared/optics'
 import { fresnelModeOf } from '../../shared/types/scenario'
-import { createRun, RunRequestError, tallyFromBytes, type CreateRunInput } from '../jobs/runs'
+import { createRun, type CreateRunInput } from '../runs/create'
+import { tallyFromBytes } from '../runs/db'
+import { RunRequestError } from '../runs/plan'
 import { requireDesignRole } from './access'
 import { requireUser } from './auth'
 import { useDb } from './db'

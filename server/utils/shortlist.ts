@@ -5,7 +5,7 @@ import { and, asc, desc, eq, sql } from 'drizzle-orm'
 import { createError, type H3Event } from 'h3'
 import type { User } from 'lucia'
 import { memberships, projects, runCells, runs, shortlistComments, shortlistEntries, shortlistEvents, users, type Project, type Role, type ShortlistEntry } from '../db/schema'
-import { figureOf, type CellSummary } from '../jobs/runs'
+import { figureOf } from '../../shared/types/figures'
 import { requireUser } from './auth'
 import { useDb, type Db, type DbOrTx } from './db'
 
@@ -169,7 +169,7 @@ export async function listShortlist(db: Db, projectId: string) {
       label: shortlistLabel({ run: r.runName, seed: r.runSeed, cell: r.entry.cellIndex, design: r.designName, version: r.designVersion, note: r.entry.note }),
       run: { name: r.runName, seed: r.runSeed, kind: r.runKind, figure: r.figure, designName: r.designName, designVersion: r.designVersion, axes: r.axes },
       cell: { status: r.cellStatus, coordinates: r.coordinates },
-      figure: figureOf(r.summary as CellSummary | null, r.figure),
+      figure: figureOf(r.summary, r.figure),
       summary: r.summary,
       geometry: lens ? { lattice: lens.lattice, pitchUm: lens.pitchUm, diameterUm: lens.diameterUm, sagUm: lens.sagUm, shape: lens.shape } : null,
     }

@@ -40,11 +40,6 @@ export function mergeTally(dst: Tally, src: Tally): Tally {
   return dst
 }
 
-/** A transferable copy (its own ArrayBuffer). */
-export function tallyToBuffer(t: Tally): ArrayBuffer {
-  return t.slice().buffer as ArrayBuffer
-}
-
 export function tallyFromBuffer(buf: ArrayBuffer | ArrayBufferLike): Tally {
   const t = new Float64Array(buf)
   if (t.length !== TALLY_LENGTH) throw new Error(`tally buffer has ${t.length} numbers, expected ${TALLY_LENGTH}`)

@@ -3,7 +3,6 @@
 // flux has I(θ) = cosθ/π).
 import { z } from 'zod'
 
-const fractionWithErr = z.object({ value: z.number(), stdErr: z.number() })
 
 export const lossesSchema = z.object({
   reflector: z.number(),
@@ -192,4 +191,3 @@ export type TraceResult = z.infer<typeof resultSchema>
 export type ColourResult = z.infer<typeof colourSchema>
 export type ThinFilmResult = z.infer<typeof thinFilmResultSchema>
 export type Losses = z.infer<typeof lossesSchema>
-export { fractionWithErr }

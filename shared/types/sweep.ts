@@ -4,7 +4,8 @@
 // with the helpers of ./geometry, and a cell whose geometry cannot be built is marked infeasible with the reason
 // instead of failing the sweep. Lengths in µm, as everywhere in the scenario.
 import { z } from 'zod'
-import { stripBidiControls } from './limits'
+import { runNameSchema } from './run'
+import { FIGURE_KEYS, type Figure } from './figures'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
 
@@ -61,12 +62,9 @@ export const sweepAxisSchema = z
 
 export type SweepAxis = z.infer<typeof sweepAxisSchema>
 
-/**
- * Figures a sweep can rank its cells by. pixelOnAxisGain: on-axis light over the pixel against the flat device (disc or
- * rectangle sources only).
- */
-export const figureSchema = z.enum(['extraction', 'enhancement', 'onAxisLuminance', 'pixelOnAxisGain'])
-export type Figure = z.infer<typeof figureSchema>
+/** Figures a sweep can rank its cells by: the registry in ./figures (label, unit, direction, what a design needs). */
+export const figureSchema = z.enum(FIGURE_KEYS)
+export type { Figure }
 
 /**
  * How much tracing a run or a cell gets: a fixed ray count, or a target standard error on the extraction that
@@ -89,7 +87,7 @@ export const precisionSchema = z
 
 export const runRequestSchema = z.object({
   designId: z.uuid({ error: 'designId must be the UUID of a saved design' }),
-  name: z.string().overwrite(stripBidiControls).trim().min(1).max(120).optional(),
+  name: runNameSchema.optional(),
   seed: z.number().int().min(0).max(0xffffffff).optional(),
   precision: precisionSchema.optional(),
 })

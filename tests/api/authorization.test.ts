@@ -85,6 +85,7 @@ const MATRIX: Record<string, Row> = {
   'GET /api/runs': READ(),
   'POST /api/runs': EDIT(201),
   'GET /api/runs/:id': READ(),
+  'PATCH /api/runs/:id': EDIT(200), // rename
   'POST /api/runs/:id/cancel': EDIT(200),
   'GET /api/runs/:id/cells/:index': READ(),
   'GET /api/runs/:id/cells/:index/export': READ(),
@@ -93,6 +94,7 @@ const MATRIX: Record<string, Row> = {
   'GET /api/sweeps': READ(),
   'POST /api/sweeps': EDIT(201),
   'GET /api/sweeps/:id': READ(),
+  'PATCH /api/sweeps/:id': EDIT(200), // rename
   'POST /api/sweeps/:id/cancel': EDIT(200),
   'GET /api/sweeps/:id/cells/:index': READ(),
   'GET /api/sweeps/:id/events': READ(),
@@ -293,6 +295,7 @@ const REQUESTS: Record<string, Build> = {
   'GET /api/runs': (t) => get(`/api/runs?projectId=${t.projectId}`),
   'POST /api/runs': (t) => post('/api/runs', { designId: t.designId, ...SMALL }),
   'GET /api/runs/:id': (t) => get(`/api/runs/${t.runId}`),
+  'PATCH /api/runs/:id': (t) => ({ method: 'PATCH', path: `/api/runs/${t.runId}`, json: { name: unique('Run') } }),
   'POST /api/runs/:id/cancel': async (t) => post(`/api/runs/${await freshRun(t)}/cancel`),
   'GET /api/runs/:id/cells/:index': (t) => get(`/api/runs/${t.runId}/cells/0`),
   'GET /api/runs/:id/cells/:index/export': (t) => get(`/api/runs/${t.runId}/cells/0/export?format=json`),
@@ -301,6 +304,7 @@ const REQUESTS: Record<string, Build> = {
   'GET /api/sweeps': (t) => get(`/api/sweeps?projectId=${t.projectId}`),
   'POST /api/sweeps': (t) => post('/api/sweeps', { designId: t.designId, ...SMALL, axes: [{ parameter: 'lensArray.sagUm', values: [3, 5] }] }),
   'GET /api/sweeps/:id': (t) => get(`/api/sweeps/${t.sweepId}`),
+  'PATCH /api/sweeps/:id': (t) => ({ method: 'PATCH', path: `/api/sweeps/${t.sweepId}`, json: { name: unique('Sweep') } }),
   'POST /api/sweeps/:id/cancel': async (t) => post(`/api/sweeps/${await freshRun(t, 'sweep')}/cancel`),
   'GET /api/sweeps/:id/cells/:index': (t) => get(`/api/sweeps/${t.sweepId}/cells/1`),
   'GET /api/sweeps/:id/events': (t) => ({ ...get(`/api/sweeps/${t.sweepId}/events`), sse: true }),

@@ -8,7 +8,7 @@ import pg from 'pg'
 import { afterAll, describe, expect, inject, it } from 'vitest'
 import { createTally, mergeRunTallies, prepareRun, summarize, traceChunk, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
 import { scenarioSchema } from '../../shared/types/scenario'
-import { chunkEventBudget } from '../../server/jobs/cost'
+import { chunkEventBudget } from '../../server/runs/cost'
 import { validScenario } from './client'
 import { startWorkerProcess, teamWithDesign, waitForRunEnd, type WorkerProcess } from './jobs'
 

@@ -21,7 +21,7 @@ describe('chunking and thread-count invariance', () => {
   beforeAll(async () => {
     // vitest cannot lend worker threads a TypeScript loader: bundle the real task entry for the real pool
     const out = fileURLToPath(new URL('../../test-output/workers/trace.mjs', import.meta.url))
-    process.env.LENSFIELD_WORKER = await buildTraceWorker(out)
+    process.env.LENSFIELD_TRACE_WORKER = await buildTraceWorker(out)
   })
   it('any split of the ray range, merged in any order, gives the same tally — seed 1101', () => {
     const scene = packScene(sc)

@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest'
 import { createTally, prepareRun, traceChunk, traceRange, T_EVENTS, T_EXTRACTED, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from '../../shared/optics'
 import { parseScenario, scenarioSchema } from '../../shared/types/scenario'
-import { chunkEventBudget, judgeCost, pilotCells } from '../../server/jobs/cost'
+import { chunkEventBudget, judgeCost, pilotCells } from '../../server/runs/cost'
 
 const hex = scenarioSchema.parse({
   emitter: { index: 1.7, angularProfile: 'isotropic', source: { shape: 'extended' } },

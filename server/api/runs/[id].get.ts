@@ -1,5 +1,5 @@
 import { idParamSchema } from '../../../shared/types/project'
-import { runProgress } from '../../jobs/runs'
+import { runProgress } from '../../runs/progress'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,5 +1,5 @@
 import { idParamSchema } from '../../../../shared/types/project'
-import { cancelRun } from '../../../jobs/runs'
+import { cancelRun } from '../../../runs/cancel'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

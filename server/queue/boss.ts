@@ -2,6 +2,7 @@
 // backoff and a dead-letter queue, all set explicitly so a lost worker or a poisoned batch has a known fate.
 import PgBoss from 'pg-boss'
 import { jobSettings, QUEUE_BATCH, QUEUE_DEAD } from './config'
+import { batchJobOptions } from './job'
 
 let started: Promise<PgBoss> | undefined
 
@@ -12,17 +13,6 @@ async function ensureQueue(boss: PgBoss, name: string, options: PgBoss.Queue) {
   } catch (err) {
     // Another process (web server and a worker starting together) may have created it a moment ago.
     if (!(await boss.getQueue(name))) throw err
-  }
-}
-
-export function batchJobOptions() {
-  const s = jobSettings()
-  return {
-    expireInSeconds: s.expireSeconds,
-    retryLimit: s.retryLimit,
-    retryDelay: s.retryDelaySeconds,
-    retryBackoff: true,
-    deadLetter: QUEUE_DEAD,
   }
 }
 

@@ -1,13 +1,11 @@
 // The "sweep finished" mail: sent to whoever started the sweep, after the transaction that closed the run has
-// committed (server/jobs/worker.ts), from the web server's embedded worker or a stand-alone worker alike. A crash
+// committed (server/runs/commit.ts), from the web server's embedded worker or a stand-alone worker alike. A crash
 // between the commit and the send loses the mail, never the result; sending twice cannot happen because only the
 // transaction that moved the run out of queued/running reports it closed.
 import { usePool } from '../utils/db'
 import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
-import { figureOf, type CellSummary } from './runs'
+import { figureDefinition, figureOf, type CellSummary } from '../../shared/types/figures'
 import { AXIS_PARAMETERS, type AxisParameter } from '../../shared/types/sweep'
-
-const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel' }
 
 export function formatWithSigma(value: number, sigma: number): string {
   // Digits to the σ's second significant figure (common practice for Monte Carlo figures).
@@ -26,7 +24,7 @@ export async function sendRunFinishedMail(runId: string): Promise<boolean> {
     `SELECT cell_index, coordinates, summary, status FROM run_cells WHERE run_id = $1`, [runId])
   const done = cells.filter((c) => c.status === 'done').length
   const best = cells.find((c) => c.cell_index === run.best_cell_index)
-  const figureName = FIGURE_NAMES[run.figure] ?? run.figure
+  const figureName = figureDefinition(run.figure).phrase
   const lines = [
     `Your sweep "${run.name}" of ${run.design_name} in ${run.project_name} has ${run.status === 'done' ? 'finished' : 'ended'}: ${done} of ${run.cells_total} cells traced.`,
   ]
@@ -38,7 +36,10 @@ export async function sendRunFinishedMail(runId: string): Promise<boolean> {
       const v = Number(((best.coordinates as number[])[i]!).toPrecision(4))
       return p ? `${p.label.toLowerCase()} ${v}${p.unit ? ` ${p.unit}` : ''}` : `${a.parameter} ${v}`
     }).join(', ')
-    lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${f ? formatWithSigma(f.value, f.stdErr) : 'n/a'}.`)
+    const def = figureDefinition(run.figure)
+    const scale = def.unit === '%' ? 100 : 1
+    const shown = f ? `${formatWithSigma(f.value * scale, f.stdErr * scale)}${def.unit ? ` ${def.unit}` : ''}` : 'n/a'
+    lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${shown}.`)
   } else {
     lines.push('No cell finished, so there is no best cell; the sweep page lists each cell\'s reason.')
   }

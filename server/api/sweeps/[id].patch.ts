@@ -1,0 +1,2 @@
+// A sweep is a run of kind 'sweep': the same handler renames both.
+export { default } from '../runs/[id].patch'
