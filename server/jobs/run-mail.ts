@@ -6,14 +6,10 @@ import { usePool } from '../utils/db'
 import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
 import { figureOf, type CellSummary } from './runs'
 import { AXIS_PARAMETERS, type AxisParameter } from '../../shared/types/sweep'
+import { withErr } from '../../shared/utils/format'
 
 const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel' }
 
-export function formatWithSigma(value: number, sigma: number): string {
-  // Digits to the σ's second significant figure (common practice for Monte Carlo figures).
-  const digits = sigma > 0 ? Math.max(0, Math.min(8, 1 - Math.floor(Math.log10(sigma)))) : 4
-  return `${value.toFixed(digits)} ± ${sigma.toFixed(digits)}`
-}
 
 export async function sendRunFinishedMail(runId: string): Promise<boolean> {
   const pool = usePool()
@@ -38,7 +34,7 @@ export async function sendRunFinishedMail(runId: string): Promise<boolean> {
       const v = Number(((best.coordinates as number[])[i]!).toPrecision(4))
       return p ? `${p.label.toLowerCase()} ${v}${p.unit ? ` ${p.unit}` : ''}` : `${a.parameter} ${v}`
     }).join(', ')
-    lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${f ? formatWithSigma(f.value, f.stdErr) : 'n/a'}.`)
+    lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${f ? withErr(f.value, f.stdErr) : 'n/a'}.`)
   } else {
     lines.push('No cell finished, so there is no best cell; the sweep page lists each cell\'s reason.')
   }
