@@ -7,7 +7,7 @@ export default defineNuxtConfig({
   // node_modules is a symlink to one install, so parallel builds overwrote each other and relative imports from
   // app/ into shared/ resolved against the wrong checkout.
   buildDir: '.nuxt',
-  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss'],
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', '@nuxt/eslint'],
   css: ['~/assets/css/main.css'],
   devtools: { enabled: false },
   telemetry: false,

@@ -9,7 +9,8 @@ import { dbFromPool } from '../server/utils/db'
 import { loadDemoData } from '../server/utils/demo'
 import { loadDemoResults } from '../server/utils/demo-results'
 
-let nuxt: ChildProcess | undefined
+// Set once nuxt dev starts; the exit hook (registered first, with the database) stops it if it runs.
+let nuxt: ChildProcess | undefined = undefined
 const db = await ensurePostgres({ database: 'lensfield' })
 stopOnExit(() => {
   if (nuxt && nuxt.exitCode === null) nuxt.kill('SIGTERM')

@@ -4,7 +4,7 @@
 import pg from 'pg'
 import { SMTPServer } from 'smtp-server'
 import { freePort } from './postgres'
-import { decodeEncodedWords } from '../server/utils/mime'
+import { parseMail } from '../server/utils/mime'
 
 export interface FakeSmtp {
   port: number
@@ -32,12 +32,12 @@ export async function startFakeSmtp(databaseUrl: string, host = '127.0.0.1'): Pr
       stream.on('data', (c: Buffer) => chunks.push(c))
       stream.on('end', () => {
         const raw = Buffer.concat(chunks).toString('utf8')
-        const head = raw.split(/\r?\n\r?\n/, 1)[0]!.replace(/\r?\n[ \t]+/g, ' ')
-        const subject = decodeEncodedWords(/^subject:\s*(.*)$/im.exec(head)?.[1] ?? '')
         const from = session.envelope.mailFrom ? session.envelope.mailFrom.address : ''
         const to = session.envelope.rcptTo.map((r) => r.address.toLowerCase())
-        pool.query('INSERT INTO mailbox_messages (mail_from, rcpt_to, subject, raw) VALUES ($1, $2, $3, $4)',
-          [from, JSON.stringify(to), subject, raw])
+        // The decoded subject is stored beside the raw message, so the tests and the mailbox can filter on it.
+        parseMail(raw)
+          .then(({ subject }) => pool.query('INSERT INTO mailbox_messages (mail_from, rcpt_to, subject, raw) VALUES ($1, $2, $3, $4)',
+            [from, JSON.stringify(to), subject, raw]))
           .then(() => callback(), (err: Error) => callback(err))
       })
     },

@@ -9,10 +9,11 @@
 import { execFileSync, spawnSync } from 'node:child_process'
 import { createHash, randomBytes } from 'node:crypto'
 import { chmodSync, chownSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
-import { createServer } from 'node:net'
-import { tmpdir } from 'node:os'
+import { constants as osConstants, tmpdir } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
+import closeWithGrace from 'close-with-grace'
+import getPort from 'get-port'
 import pg from 'pg'
 import { drizzle } from 'drizzle-orm/node-postgres'
 import { migrate } from 'drizzle-orm/node-postgres/migrator'
@@ -40,28 +41,9 @@ function log(msg: string) {
   process.stdout.write(`[postgres] ${msg}\n`)
 }
 
-/** A TCP port on 127.0.0.1 that was free a moment ago. */
+/** A TCP port on 127.0.0.1 that was free a moment ago (get-port; it also holds it back from this process's next calls). */
 export function freePort(): Promise<number> {
-  return new Promise((res, rej) => {
-    const srv = createServer()
-    srv.unref()
-    srv.on('error', rej)
-    srv.listen(0, '127.0.0.1', () => {
-      const addr = srv.address()
-      const port = typeof addr === 'object' && addr ? addr.port : 0
-      srv.close(() => res(port))
-    })
-  })
-}
-
-/** True when host:port can be bound right now. */
-export function portIsFree(port: number, host = '127.0.0.1'): Promise<boolean> {
-  return new Promise((res) => {
-    const srv = createServer()
-    srv.unref()
-    srv.once('error', () => res(false))
-    srv.listen(port, host, () => srv.close(() => res(true)))
-  })
+  return getPort({ host: '127.0.0.1' })
 }
 
 function findBinDir(): string | null {
@@ -266,43 +248,32 @@ export async function ensurePostgres(opts: { database: string, throwaway?: boole
 }
 
 /**
- * Calls cleanup once when this process ends: normally, on an uncaught error, or on SIGINT/SIGTERM/SIGHUP
- * (then exits with 128+signal). cleanup must be synchronous (it runs inside the 'exit' event too).
+ * Calls cleanup once when this process ends: on SIGINT/SIGTERM/SIGHUP (then exits with 128 + the signal's number),
+ * on an uncaught error (exit 1), when the event loop empties, or on process.exit() (then only cleanup's synchronous
+ * part runs, as in any 'exit' listener). Signals and errors go through close-with-grace, which waits up to 15 s for
+ * an asynchronous cleanup and exits at once on a second signal.
  */
-export function stopOnExit(cleanup: () => void) {
+export function stopOnExit(cleanup: () => void | Promise<void>) {
   let done = false
   const once = () => {
     if (done) return
     done = true
-    cleanup()
+    return cleanup()
   }
-  process.on('exit', once)
-  for (const [sig, code] of [['SIGINT', 130], ['SIGTERM', 143], ['SIGHUP', 129]] as const) {
-    process.on(sig, () => {
-      once()
-      process.exit(code)
-    })
-  }
+  process.on('exit', () => void once())
+  const grace = closeWithGrace({ delay: 15_000 }, async ({ signal, err }) => {
+    if (err) console.error(err)
+    await once()
+    // 128 + n after a signal (as a shell reports it), 1 after an error, else the exit code the script set.
+    process.exit(err ? 1 : signal ? 128 + (osConstants.signals[signal] ?? 1) : Number(process.exitCode ?? 0))
+  })
   // `npm start` does not always pass a SIGTERM on to its script: when the npm (or tsx) process above us goes
   // away without a signal reaching us, notice it and clean up instead of leaving orphans behind.
   const watched = ancestorPids(2)
   const watchdog = setInterval(() => {
-    if (watched.some((pid) => !isAlive(pid))) {
-      once()
-      process.exit(129)
-    }
+    if (watched.some((pid) => !isAlive(pid))) void grace.close()
   }, 1000)
   watchdog.unref()
-  process.on('uncaughtException', (err) => {
-    console.error(err)
-    once()
-    process.exit(1)
-  })
-  process.on('unhandledRejection', (err) => {
-    console.error(err)
-    once()
-    process.exit(1)
-  })
 }
 
 function parentOf(pid: number): number | null {

@@ -20,6 +20,25 @@ export function buildApp() {
   runOrThrow(bin('nuxt'), ['build'])
 }
 
+/**
+ * The static checks `npm test` runs first: `nuxi typecheck` (vue-tsc over app/, server/, shared/) and ESLint
+ * (eslint.config.mjs; typecheck first, since it writes the .nuxt/eslint.config.mjs the lint config extends).
+ * Returns the failed checks' names, each with the command to rerun it on its own.
+ */
+export function staticChecks(): string[] {
+  const checks: Array<[name: string, cmd: string, args: string[], rerun: string]> = [
+    ['type-check', bin('nuxi'), ['typecheck'], 'npm run typecheck'],
+    ['lint', bin('eslint'), ['.'], 'npm run lint'],
+  ]
+  const failed: string[] = []
+  for (const [name, cmd, args, rerun] of checks) {
+    console.log(`[checks] ${name}: ${rerun}`)
+    const r = spawnSync(cmd, args, { cwd: repoRoot, stdio: 'inherit' })
+    if (r.status !== 0) failed.push(`${name} (rerun: ${rerun})`)
+  }
+  return failed
+}
+
 /** Starts a long-running child; the parent's exit hooks kill it. */
 export function startChild(cmd: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
   return spawn(cmd, args, { cwd: repoRoot, stdio: 'inherit', env })

@@ -7,7 +7,8 @@
 // Ctrl-C (or SIGTERM) stops the app and the database server it started.
 import pg from 'pg'
 import { join } from 'node:path'
-import { ensurePostgres, freePort, migrateDatabase, portIsFree, repoRoot, stopOnExit } from './postgres'
+import getPort from 'get-port'
+import { ensurePostgres, migrateDatabase, repoRoot, stopOnExit } from './postgres'
 import { buildApp, startChild, waitForHttp } from './run'
 import { startFakeSmtp, type FakeSmtp } from './fake-smtp'
 import { dbFromPool } from '../server/utils/db'
@@ -16,13 +17,14 @@ import { loadDemoResults } from '../server/utils/demo-results'
 import type { ChildProcess } from 'node:child_process'
 
 const demo = !process.argv.includes('--production') && process.env.LENSFIELD_DEMO !== '0'
-let app: ChildProcess | undefined
+// Set once the app server starts; the exit hook (registered first, with the database) stops it if it runs.
+let app: ChildProcess | undefined = undefined
 let mailbox: FakeSmtp | undefined
 const db = await ensurePostgres({ database: 'lensfield' })
-stopOnExit(() => {
+stopOnExit(async () => {
   if (app && app.exitCode === null) app.kill('SIGTERM')
-  void mailbox?.close()
   db.stop()
+  await mailbox?.close()
 })
 
 await migrateDatabase(db.url)
@@ -41,7 +43,7 @@ buildApp()
 
 const host = process.env.HOST ?? '127.0.0.1'
 // PORT when given; else 3000 when free (a stable address for bookmarks); else any free port.
-const port = Number(process.env.PORT) || (await portIsFree(3000, host) ? 3000 : await freePort())
+const port = Number(process.env.PORT) || await getPort({ port: 3000, host })
 app = startChild(process.execPath, [join(repoRoot, '.output', 'server', 'index.mjs')], {
   ...process.env,
   DATABASE_URL: db.url,

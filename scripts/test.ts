@@ -1,11 +1,20 @@
-// `npm test`: a throwaway Postgres (fresh cluster in a temp folder, or a fresh database on DATABASE_URL's server),
-// migrations, the production build, then every vitest project (unit, physics, api). The api project's global
-// setup (tests/api/global-setup.ts) starts the built server against that database. Extra arguments go to vitest,
+// `npm test`: the static checks (type-check, then lint; LENSFIELD_SKIP_CHECKS=1 skips them for a targeted rerun),
+// a throwaway Postgres (fresh cluster in a temp folder, or a fresh database on DATABASE_URL's server), migrations,
+// the production build, then every vitest project (unit, physics, api, e2e). The api project's global setup
+// (tests/api/global-setup.ts) starts the built server against that database. Extra arguments go to vitest,
 // e.g. `npm test -- --project unit`.
 import { randomBytes } from 'node:crypto'
 import { spawnSync } from 'node:child_process'
 import { createDatabase, ensurePostgres, migrateDatabase, repoRoot, stopOnExit } from './postgres'
-import { bin, buildApp } from './run'
+import { bin, buildApp, staticChecks } from './run'
+
+if (process.env.LENSFIELD_SKIP_CHECKS !== '1') {
+  const failed = staticChecks()
+  if (failed.length > 0) {
+    console.error(`\n[checks] npm test stopped before the tests: ${failed.join(' and ')} failed; the errors are listed above.`)
+    process.exit(1)
+  }
+}
 
 const server = await ensurePostgres({ database: 'postgres', throwaway: true })
 const dbName = `lensfield_test_${randomBytes(4).toString('hex')}`

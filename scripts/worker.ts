@@ -2,6 +2,7 @@
 // database the web server uses); it takes ray batches from the queue until it is stopped (SIGINT/SIGTERM), then
 // finishes or hands back what it was tracing.
 import { parseArgs } from 'node:util'
+import closeWithGrace from 'close-with-grace'
 import { stopBoss } from '../server/queue/boss'
 import { defaultThreads } from '../server/queue/pool'
 import { startBatchWorker } from '../server/queue/worker'
@@ -41,14 +42,11 @@ process.on('unhandledRejection', (err) => {
 process.env.LENSFIELD_TRACE_WORKER = await prepareWorker()
 const worker = await startBatchWorker({ threads })
 console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)
-let stopping = false
-const shutdown = async (signal: string) => {
-  if (stopping) return
-  stopping = true
-  console.log(`[worker] ${signal}: finishing running batches`)
+// On a signal (or an uncaught error) finish or hand back the running batches, then stop; a second signal, or 60 s,
+// ends at once (the queue retries what was left). Unhandled rejections are handled above, not a reason to stop.
+closeWithGrace({ delay: 60_000, skip: ['unhandledRejection'] }, async ({ signal, err }) => {
+  if (err) console.error('[worker] unexpected error:', err)
+  console.log(`[worker] ${signal ?? 'stopping'}: finishing running batches`)
   await worker.stop()
   await stopBoss()
-  process.exit(0)
-}
-process.on('SIGINT', () => void shutdown('SIGINT'))
-process.on('SIGTERM', () => void shutdown('SIGTERM'))
+})

@@ -30,7 +30,7 @@ export function useRunProgress(kind: 'runs' | 'sweeps', id: Ref<string>, initial
   function open() {
     close()
     if (typeof EventSource === 'undefined') return
-    if (progress.value && !['queued', 'running'].includes(progress.value.status)) { ended.value = true; return }
+    if (progress.value && !isOpenStatus(progress.value.status)) { ended.value = true; return }
     source = new EventSource(`/api/${kind}/${id.value}/events`)
     source.addEventListener('open', () => { connected.value = true })
     source.addEventListener('progress', (e) => { progress.value = JSON.parse((e as MessageEvent).data) })

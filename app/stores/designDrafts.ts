@@ -27,7 +27,7 @@ export const useDesignDraftsStore = defineStore('designDrafts', () => {
   }
   function drop(id: string) {
     ensureLoaded()
-    delete drafts.value[id]
+    drafts.value = Object.fromEntries(Object.entries(drafts.value).filter(([key]) => key !== id))
     persist()
   }
   return { drafts, get, put, drop }

@@ -1,10 +1,21 @@
-// Client-side export: CSV text from rows (shared/utils/csv-cell.ts: text quoted, formula starts neutralised) and a
+// Client-side export: CSV text from rows, written by papaparse with the cell rules of shared/utils/csv-cell.ts
+// (text always quoted, line breaks folded, formula starts neutralised; numbers bare; non-finite numbers empty), and a
 // download of a string or data URL.
-import { csvRow, type CsvValue } from '#shared/utils/csv-cell'
+import Papa from 'papaparse'
+import { safeCsvText, type CsvValue } from '#shared/utils/csv-cell'
 import { fileName, fileNamePart } from '#shared/utils/file-name'
 
+function cell(v: CsvValue): string | number | null {
+  if (v === null || v === undefined) return null
+  if (typeof v === 'number') return Number.isFinite(v) ? v : null
+  return safeCsvText(v)
+}
+
 export function toCsv(header: string[], rows: CsvValue[][]): string {
-  return [header, ...rows].map(csvRow).join('\r\n') + '\r\n'
+  const data = [header, ...rows].map((r) => r.map(cell))
+  // escapeFormulae stays off: safeCsvText has already neutralised text, and papaparse's own rule would also
+  // prefix negative numbers.
+  return Papa.unparse(data, { quotes: (value: unknown) => typeof value === 'string', newline: '\r\n', escapeFormulae: false }) + '\r\n'
 }
 
 export function downloadHref(href: string, filename: string): void {

@@ -1,33 +1,5 @@
-// Number display: a Monte Carlo figure with its standard error, rounded to the σ's leading digits; plain values to
-// 4 significant figures. Every caller passes the unit ('' for a ratio/fraction shown as such, '%' for percent).
-
-/** Decimal places that show σ to two significant digits. */
-function decimalsFor(stdErr: number): number {
-  if (!(stdErr > 0) || !Number.isFinite(stdErr)) return 4
-  return Math.max(0, Math.min(8, 1 - Math.floor(Math.log10(stdErr))))
-}
-
-/** "0.4123 ± 0.0011" (value and σ in the same units). */
-export function withErr(value: number | null | undefined, stdErr: number | null | undefined, unit = ''): string {
-  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
-  const e = stdErr ?? 0
-  const dp = decimalsFor(e)
-  const u = unit ? (unit === '°' ? '°' : ` ${unit}`) : ''
-  return `${value.toFixed(dp)} ± ${e.toFixed(dp)}${u}`
-}
-
-/** A fraction as a percentage with σ: 0.4123, 0.0011 → "41.23 ± 0.11 %". */
-export function pctErr(value: number | null | undefined, stdErr: number | null | undefined): string {
-  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
-  return withErr(value * 100, (stdErr ?? 0) * 100, '%')
-}
-
-/** 4 significant figures with the unit: 6.25, 'µm' → "6.25 µm". */
-export function num(value: number | null | undefined, unit = '', digits = 4): string {
-  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
-  const s = String(Number(value.toPrecision(digits)))
-  return unit ? (unit === '°' ? `${s}°` : `${s} ${unit}`) : s
-}
+// Dates and counts for display. Figures with σ and plain values with units: shared/utils/format.ts (withErr,
+// pctErr, num), the same rule on the server.
 
 export function rays(n: number): string {
   return new Intl.NumberFormat('en-GB').format(Math.round(n))

@@ -12,7 +12,9 @@ import { Server as HttpServer } from 'node:http'
 import type { Socket } from 'node:net'
 import { toNodeListener } from 'h3'
 import { useNitroApp } from 'nitropack/runtime'
-import { setupGracefulShutdown, trapUnhandledNodeErrors } from 'nitropack/runtime/internal'
+// The two files behind Nitro's 'nitropack/runtime/internal' barrel, which has no type declarations of its own.
+import { setupGracefulShutdown } from 'nitropack/runtime/internal/shutdown'
+import { trapUnhandledNodeErrors } from 'nitropack/runtime/internal/utils'
 import { connectionLimitsFromEnv } from '../utils/connection-limits'
 
 const limits = connectionLimitsFromEnv(process.env)

@@ -6,12 +6,8 @@ import { usePool } from '../utils/db'
 import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
 import { figureDefinition, figureOf, type CellSummary } from '../../shared/types/figures'
 import { AXIS_PARAMETERS, type AxisParameter } from '../../shared/types/sweep'
+import { withErr } from '../../shared/utils/format'
 
-export function formatWithSigma(value: number, sigma: number): string {
-  // Digits to the σ's second significant figure (common practice for Monte Carlo figures).
-  const digits = sigma > 0 ? Math.max(0, Math.min(8, 1 - Math.floor(Math.log10(sigma)))) : 4
-  return `${value.toFixed(digits)} ± ${sigma.toFixed(digits)}`
-}
 
 export async function sendRunFinishedMail(runId: string): Promise<boolean> {
   const pool = usePool()
@@ -38,7 +34,7 @@ export async function sendRunFinishedMail(runId: string): Promise<boolean> {
     }).join(', ')
     const def = figureDefinition(run.figure)
     const scale = def.unit === '%' ? 100 : 1
-    const shown = f ? `${formatWithSigma(f.value * scale, f.stdErr * scale)}${def.unit ? ` ${def.unit}` : ''}` : 'n/a'
+    const shown = f ? withErr(f.value * scale, f.stdErr * scale, def.unit) : 'n/a'
     lines.push(`Best cell by ${figureName}: cell ${best.cell_index} (${axes}), ${figureName} ${shown}.`)
   } else {
     lines.push('No cell finished, so there is no best cell; the sweep page lists each cell\'s reason.')

@@ -6,9 +6,9 @@ import type { User } from 'lucia'
 import { designs, memberships, projects, type Design, type Project, type Role } from '../db/schema'
 import { requireUser } from './auth'
 import { useDb } from './db'
+// EDITOR_ROLES (lead, designer), which the routes pass here, lives in shared/utils/roles.ts beside roleCanEdit (the app's canEdit).
 
 export const ANY_ROLE: readonly Role[] = ['lead', 'designer', 'viewer']
-export const EDITOR_ROLES: readonly Role[] = ['lead', 'designer']
 
 function forbidden(role: Role, allowed: readonly Role[], what: string) {
   return createError({

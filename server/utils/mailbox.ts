@@ -36,8 +36,8 @@ export async function listMailbox(addresses: string[], limit = 100) {
   const rows = await useDb().select().from(mailboxMessages)
     .where(sql`${lowered} ?| ARRAY[${sql.join(addresses.map((a) => sql`${a}`), sql`, `)}]::text[]`)
     .orderBy(desc(mailboxMessages.receivedAt)).limit(limit)
-  return rows.map((r) => {
-    const m = parseMail(r.raw)
+  return Promise.all(rows.map(async (r) => {
+    const m = await parseMail(r.raw)
     return { id: r.id, receivedAt: r.receivedAt, from: r.mailFrom, to: r.rcptTo, subject: r.subject || m.subject, text: m.text, html: m.html }
-  })
+  }))
 }

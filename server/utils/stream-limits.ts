@@ -25,7 +25,7 @@ export function takeStreamSlot(event: H3Event): () => void {
   const perSession = limit('LENSFIELD_STREAMS_PER_SESSION', 20)
   const perAddress = limit('LENSFIELD_STREAMS_PER_ADDRESS', 60)
   const tooMany = (what: string, n: number) => {
-    setResponseHeader(event, 'retry-after', '10')
+    setResponseHeader(event, 'retry-after', 10)
     return createError({
       statusCode: 429, statusMessage: 'Too Many Requests',
       message: `Too many live progress views open ${what} (at most ${n}); close some tabs and reload.`,

@@ -6,11 +6,15 @@
 
 const FORMULA_START = /^[=+\-@\t\r]/
 
-/** One text field: line breaks folded to spaces, formula starts neutralised, always quoted. */
-export function csvText(text: string): string {
+/** A text's content as written (before quoting): line breaks folded to spaces, formula starts neutralised. */
+export function safeCsvText(text: string): string {
   const oneLine = text.replace(/[\r\n]+/g, ' ')
-  const safe = FORMULA_START.test(oneLine) ? `'${oneLine}` : oneLine
-  return `"${safe.replace(/"/g, '""')}"`
+  return FORMULA_START.test(oneLine) ? `'${oneLine}` : oneLine
+}
+
+/** One text field: safeCsvText, always quoted. */
+export function csvText(text: string): string {
+  return `"${safeCsvText(text).replace(/"/g, '""')}"`
 }
 
 export type CsvValue = string | number | null | undefined

@@ -6,7 +6,8 @@
 //   whatever the file is called; the file name never decides what the content is.
 // - The first non-comment line is the header; its columns must be those of the table kind (a few aliases, units in
 //   parentheses ignored). Lines starting with '#' are comments (profilometer exports carry metadata); blank lines
-//   are skipped. Separator: comma, semicolon or tab, detected from the header.
+//   are skipped. Separator: comma, semicolon or tab, detected from the header. papaparse splits the lines into
+//   cells (a cell in double quotes may hold the separator, RFC 4180 §2); cells are trimmed.
 // - Formula-looking cells are refused: a cell starting with '=', '+', '-', '@' (and tab/CR, per the OWASP advice
 //   on CSV injection) unless the whole cell is a plain decimal number. So "-0.5" and "+1e-3" are numbers, while
 //   "=1+2", "-1+2", "@SUM(A1)" and "+A1" are refused as formulas. Such a cell would run as a formula when the
@@ -15,6 +16,8 @@
 // - A lens profile to be fitted (`{ trace: true }`, see profile-fit.ts) may rise towards the rim and need not have
 //   its centre above the rim: the fit decides whether it is a cap. It must still start at r_um = 0, have r_um
 //   increasing and no negative heights.
+
+import Papa from 'papaparse'
 
 export type DataTableKind = 'lens_profile' | 'angular_profile' | 'refractive_index'
 
@@ -91,11 +94,28 @@ function normalizeHeader(cell: string): string {
   return cell.trim().replace(/^"|"$/g, '').toLowerCase().replace(/\(.*?\)|\[.*?\]/g, '').replace(/µ|μ/g, 'u').trim().replace(/[\s-]+/g, '_').replace(/_+$/, '')
 }
 
-function splitCells(line: string, sep: string): string[] {
-  return line.split(sep).map((c) => {
-    const t = c.trim()
-    return t.length >= 2 && t.startsWith('"') && t.endsWith('"') ? t.slice(1, -1).trim() : t
+/**
+ * The table's data lines as trimmed cells, each with its 1-based line number in the file. Comment and blank lines
+ * are blanked before papaparse splits the rest (so they cannot open a quote), and papaparse's cursor gives each
+ * row's first line even when a quoted cell spans lines.
+ */
+function splitTable(lines: string[], sep: string): Array<{ line: number, cells: string[] }> {
+  const text = lines.map((l) => (l.trim() === '' || l.trim().startsWith('#') ? '' : l)).join('\n')
+  const out: Array<{ line: number, cells: string[] }> = []
+  let rowStart = 0
+  let line = 1
+  Papa.parse<string[]>(text, {
+    delimiter: sep,
+    newline: '\n',
+    step(row) {
+      const cells = row.data.map((c) => c.trim())
+      if (cells.length > 1 || cells[0] !== '') out.push({ line, cells })
+      const end = row.meta.cursor
+      for (let i = rowStart; i < end; i++) if (text.charCodeAt(i) === 10) line++
+      rowStart = end
+    },
   })
+  return out
 }
 
 /** Errors listed at most; the count of the rest is reported in a last line. */
@@ -112,36 +132,28 @@ export function parseDataTable(kind: DataTableKind, bytes: Uint8Array, opts: { t
   let extraErrors = 0
   const fail = (e: TableLineError) => { if (errors.length < MAX_ERRORS) errors.push(e); else extraErrors++ }
 
-  let headerLine = -1
-  let sep = ','
-  for (let i = 0; i < lines.length; i++) {
-    const l = lines[i]!.trim()
-    if (!l || l.startsWith('#')) continue
-    headerLine = i
-    sep = l.includes('\t') ? '\t' : l.includes(';') && !l.includes(',') ? ';' : ','
-    const cells = splitCells(l, sep)
+  const first = lines.find((l) => l.trim() !== '' && !l.trim().startsWith('#'))
+  if (first === undefined) return { ok: false, status: 422, errors: [{ line: 1, message: `the file has no header line; the first line must be ${spec.map((c) => c.name).join(',')}` }] }
+  const sep = first.includes('\t') ? '\t' : first.includes(';') && !first.includes(',') ? ';' : ','
+  const [header, ...body] = splitTable(lines, sep)
+  {
+    const { line, cells } = header!
     const formula = cells.find(isFormulaCell)
-    if (formula !== undefined) return { ok: false, status: 422, errors: [{ line: i + 1, message: `line ${i + 1}: cell ${JSON.stringify(formula)} looks like a spreadsheet formula; formulas are refused` }] }
+    if (formula !== undefined) return { ok: false, status: 422, errors: [{ line, message: `line ${line}: cell ${JSON.stringify(formula)} looks like a spreadsheet formula; formulas are refused` }] }
     const got = cells.map(normalizeHeader)
     const okHeader = got.length === spec.length && spec.every((c, j) => c.aliases.includes(got[j]!))
     if (!okHeader) {
-      return { ok: false, status: 422, errors: [{ line: i + 1, message: `line ${i + 1}: the header must name the columns ${spec.map((c) => c.name).join(', ')} in this order; got ${cells.map((c) => JSON.stringify(c)).join(', ') || 'nothing'}` }] }
+      const named = cells.map((c) => JSON.stringify(c)).join(', ') || 'nothing'
+      return { ok: false, status: 422, errors: [{ line, message: `line ${line}: the header must name the columns ${spec.map((c) => c.name).join(', ')} in this order; got ${named}` }] }
     }
-    break
   }
-  if (headerLine < 0) return { ok: false, status: 422, errors: [{ line: 1, message: `the file has no header line; the first line must be ${spec.map((c) => c.name).join(',')}` }] }
 
   const rows: number[][] = []
   const lineOf: number[] = []
-  for (let i = headerLine + 1; i < lines.length; i++) {
-    const raw = lines[i]!
-    const l = raw.trim()
-    if (!l || l.startsWith('#')) continue
-    const lineNo = i + 1
+  for (const { line: lineNo, cells } of body) {
     if (rows.length + errors.length + extraErrors >= MAX_TABLE_ROWS) {
       return { ok: false, status: 413, errors: [{ line: lineNo, message: `line ${lineNo}: more than ${MAX_TABLE_ROWS} data rows; split the table or thin the trace` }] }
     }
-    const cells = splitCells(raw, sep)
     if (cells.length !== spec.length) {
       fail({ line: lineNo, message: `line ${lineNo}: expected ${spec.length} values (${spec.map((c) => c.name).join(', ')}), got ${cells.length}` })
       rows.push([])

@@ -64,7 +64,7 @@ export default async function setup(project: TestProject) {
   } catch (err) {
     server.kill('SIGKILL')
     await mailbox.close()
-    throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`)
+    throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`, { cause: err })
   }
   project.provide('baseUrl', baseUrl)
   project.provide('databaseUrl', databaseUrl)

@@ -8,7 +8,7 @@ export async function waitForMail(pool: pg.Pool, to: string, subject: string, n 
   return waitFor(`mail "${subject}" to ${to}`, async () => {
     const { rows } = await pool.query(
       `SELECT raw FROM mailbox_messages WHERE rcpt_to ? $1 AND subject LIKE '%' || $2 || '%' ORDER BY received_at`, [to.toLowerCase(), subject])
-    return rows.length >= n ? parseMail(rows[n - 1].raw as string) : null
+    return rows.length >= n ? await parseMail(rows[n - 1].raw as string) : null
   }, timeoutMs)
 }
 

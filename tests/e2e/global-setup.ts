@@ -65,7 +65,7 @@ export default async function setup(project: TestProject) {
     await waitForHttp(`${baseUrl}/api/health`, 30_000)
   } catch (err) {
     server.kill('SIGKILL')
-    throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`)
+    throw new Error(`${(err as Error).message}\nserver log:\n${readFileSync(logFile, 'utf8')}`, { cause: err })
   }
   project.provide('e2eBaseUrl', baseUrl)
   project.provide('e2eProjectId', projectId)

@@ -2,8 +2,9 @@
 // Fresnel coefficients: Hecht, Optics, ch. 4).
 import { describe, expect, it } from 'vitest'
 import { fresnelAveraged } from '../../shared/optics/interfaces'
-import { THETA_BINS, T_EXTRACTED, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from '../../shared/optics'
-import { traceScenario } from '../../shared/optics'
+import {
+  THETA_BINS, T_EXTRACTED, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED, traceScenario,
+} from '../../shared/optics'
 import { expectWithinSigma, fraction, integrate, planarStack, traceScene } from './helpers'
 
 const N = 300_000

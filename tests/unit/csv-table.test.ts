@@ -1,8 +1,8 @@
-// Upload table rules (shared/utils/csv-table.ts) and the mail reader (server/utils/mime.ts), pure.
+// Upload table rules (shared/utils/csv-table.ts) and the mail reader (server/utils/mime.ts, mailparser), pure.
 import { describe, expect, it } from 'vitest'
 import fc from 'fast-check'
 import { fileNameProblem, isFormulaCell, parseDataTable, sniffBinary } from '../../shared/utils/csv-table'
-import { decodeEncodedWords, decodeQuotedPrintable, parseMail } from '../../server/utils/mime'
+import { parseMail } from '../../server/utils/mime'
 
 const enc = (s: string) => new TextEncoder().encode(s)
 
@@ -22,6 +22,13 @@ describe('parseDataTable', () => {
   it('reads a profile with comments, a BOM, semicolons and unit suffixes in the header', () => {
     const r = parseDataTable('lens_profile', enc('\uFEFF# stylus 2 µm\nr (µm);height (µm)\n0;3\n2.5;2\n5;0\n'))
     expect(r).toEqual({ ok: true, columns: ['r_um', 'height_um'], rows: [[0, 3], [2.5, 2], [5, 0]] })
+  })
+  it('reads quoted cells (RFC 4180 §2) and keeps file line numbers past comments and a quoted line break', () => {
+    const ok = parseDataTable('lens_profile', enc('r_um;height_um\n# note; "unclosed\n\n0;" 1.0 "\n"1";0.5\n'))
+    expect(ok).toEqual({ ok: true, columns: ['r_um', 'height_um'], rows: [[0, 1], [1, 0.5]] })
+    const bad = parseDataTable('lens_profile', enc('r_um,height_um\n0,1\n"x\ny",0.5\n2,abc\n'))
+    expect(bad.ok).toBe(false)
+    if (!bad.ok) expect(bad.errors.map((e) => [e.line, e.column])).toEqual([[3, 'r_um'], [5, 'height_um']])
   })
   it('names every bad line, not only the first', () => {
     const r = parseDataTable('angular_profile', enc('theta_deg,intensity\n0,1\n10,x\n20,-1\n30\n'))
@@ -46,15 +53,17 @@ describe('parseDataTable', () => {
 })
 
 describe('mail reader', () => {
-  it('decodes quoted-printable and RFC 2047 words (RFC 2045 §6.7, RFC 2047 §4)', () => {
-    expect(decodeQuotedPrintable('caf=C3=A9 =\r\nau lait')).toBe('café au lait')
-    expect(decodeEncodedWords('=?UTF-8?Q?Sweep_finished:_=C2=B5m?=')).toBe('Sweep finished: µm')
-    expect(decodeEncodedWords('=?UTF-8?B?wrE=?=')).toBe('±')
+  it('decodes quoted-printable bodies and RFC 2047 words (RFC 2045 §6.7, RFC 2047 §4)', async () => {
+    const qp = await parseMail(['Subject: =?UTF-8?Q?Sweep_finished:_=C2=B5m?=', 'Content-Type: text/plain; charset=utf-8',
+      'Content-Transfer-Encoding: quoted-printable', '', 'caf=C3=A9 =', 'au lait', ''].join('\r\n'))
+    expect(qp.subject).toBe('Sweep finished: µm')
+    expect(qp.text).toBe('café au lait')
+    expect((await parseMail('Subject: =?UTF-8?B?wrE=?=\r\n\r\nx\r\n')).subject).toBe('±')
   })
-  it('takes the text and HTML parts of a multipart/alternative message', () => {
+  it('takes the text and HTML parts of a multipart/alternative message', async () => {
     const raw = ['Subject: =?UTF-8?Q?Hi_=C2=B1?=', 'Content-Type: multipart/alternative; boundary="b1"', '', '--b1', 'Content-Type: text/plain; charset=utf-8',
       'Content-Transfer-Encoding: quoted-printable', '', 'one =C2=B1 two', '--b1', 'Content-Type: text/html', '', '<p>x</p>', '--b1--', ''].join('\r\n')
-    const m = parseMail(raw)
+    const m = await parseMail(raw)
     expect(m.subject).toBe('Hi ±')
     expect(m.text).toBe('one ± two')
     expect(m.html).toBe('<p>x</p>')

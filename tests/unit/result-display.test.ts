@@ -1,7 +1,7 @@
-// Result display helpers (app/utils/format.ts, app/utils/resultMath.ts, app/utils/exportData.ts). The
+// Result display helpers (shared/utils/format.ts, app/utils/resultMath.ts, app/utils/exportData.ts). The
 // half-luminance angle and its σ come from the engine (tested in tests/physics).
 import { describe, expect, it } from 'vitest'
-import { pctErr, withErr, num } from '../../app/utils/format'
+import { pctErr, withErr, num } from '../../shared/utils/format'
 import { binomialStdErr } from '../../app/utils/resultMath'
 import { toCsv } from '../../app/utils/exportData'
 

@@ -17,7 +17,7 @@ export default defineApiHandler(async (event) => {
     sending = sending.then(async () => {
       if (!state || closed) return
       await stream.push({ event: 'progress', data: JSON.stringify(state) })
-      if (!['queued', 'running'].includes(state.status)) {
+      if (!isOpenStatus(state.status)) {
         await stream.push({ event: 'end', data: state.status })
         closed = true
         await stream.close()
