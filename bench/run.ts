@@ -3,18 +3,17 @@
 // enhancement's reference), exactly as a real run does. Figures depend on machine load: re-run when quiet.
 // Usage: npm run bench -- [--rays N] [name ...]
 import { availableParallelism, cpus, loadavg } from 'node:os'
+import { parseArgs } from 'node:util'
 import { scenarioSchema } from '../shared/types/scenario'
 import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
 import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
 
-const argv = process.argv.slice(2)
-let rays = 2_000_000
-const names: string[] = []
-for (let i = 0; i < argv.length; i++) {
-  if (argv[i] === '--rays') rays = Number(argv[++i])
-  else names.push(argv[i]!)
-}
+const { values, positionals: names } = parseArgs({ options: { rays: { type: 'string', default: '2000000' } }, allowPositionals: true })
+const rays = Number(values.rays)
+if (!Number.isInteger(rays) || rays < 1) throw new Error(`--rays must be a whole number ≥ 1: got ${values.rays}`)
+const unknown = names.filter((n) => !Object.hasOwn(benchScenarios, n))
+if (unknown.length) throw new Error(`unknown scenario(s) ${unknown.join(', ')}; known: ${Object.keys(benchScenarios).join(', ')}`)
 const selected = names.length ? names : Object.keys(benchScenarios)
 const all = Math.max(1, availableParallelism())
 
@@ -27,8 +26,7 @@ console.log(`Lensfield bench ${new Date().toISOString().slice(0, 10)} — ${cpus
 const pools = new Map<number, Awaited<ReturnType<typeof createTracePoolReady>>>()
 for (const t of new Set([1, all])) pools.set(t, await createTracePoolReady(t))
 for (const name of selected) {
-  const input = benchScenarios[name]
-  if (!input) { console.error(`unknown scenario ${name}`); process.exit(2) }
+  const input = benchScenarios[name]!
   const sc = scenarioSchema.parse(input)
   const run = prepareRun(sc)
   // in-process, one thread (after a warm-up so the JIT has settled)

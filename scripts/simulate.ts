@@ -4,11 +4,19 @@
 //   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]
 import { readFileSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
+import { parseArgs as parseCliArgs } from 'node:util'
 import { parseScenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
 import { traceOnPool } from './trace-pool'
 
 const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]'
+const CLI_OPTIONS = {
+  rays: { type: 'string' },
+  seed: { type: 'string' },
+  threads: { type: 'string' },
+  json: { type: 'boolean' },
+  help: { type: 'boolean', short: 'h' },
+} as const
 
 function fail(msg: string, code = 2): never {
   process.stderr.write(`simulate: ${msg}\n`)
@@ -21,23 +29,35 @@ function intArg(name: string, v: string | undefined, min: number, max: number): 
   return n
 }
 
-function parseArgs(argv: string[]) {
-  let file: string | undefined
-  let rays: number | undefined, seed: number | undefined, threads: number | undefined
-  let json = false
-  for (let i = 0; i < argv.length; i++) {
-    const a = argv[i]!
-    if (a === '--json') json = true
-    else if (a === '--rays') rays = intArg('--rays', argv[++i], 1, 1e10)
-    else if (a === '--seed') seed = intArg('--seed', argv[++i], 0, 0xffffffff)
-    else if (a === '--threads') threads = intArg('--threads', argv[++i], 1, 256)
-    else if (a === '--help' || a === '-h') { process.stdout.write(`${USAGE}\n`); process.exit(0) }
-    else if (a.startsWith('--')) fail(`unknown option ${a}\n${USAGE}`)
-    else if (file === undefined) file = a
-    else fail(`more than one scenario file given (${file}, ${a})\n${USAGE}`)
+/** Whole-number flags and their ranges. */
+const INT_FLAGS = { rays: [1, 1e10], seed: [0, 0xffffffff], threads: [1, 256] } as const
+type IntFlag = keyof typeof INT_FLAGS
+const isIntFlag = (name: string): name is IntFlag => Object.hasOwn(INT_FLAGS, name)
+
+/** The command line (node:util parseArgs); every refusal names the flag and repeats the usage. */
+function readArgs(argv: string[]) {
+  let parsed: { values: { [K in IntFlag]?: string } & { json?: boolean, help?: boolean }, positionals: string[] }
+  try {
+    parsed = parseCliArgs({ args: argv, options: CLI_OPTIONS, allowPositionals: true, strict: true })
+  } catch (e) {
+    const err = e as Error & { code?: string }
+    const flag = /'(-{1,2}[A-Za-z][\w-]*)/.exec(err.message)?.[1] ?? ''
+    if (err.code === 'ERR_PARSE_ARGS_UNKNOWN_OPTION') fail(`unknown option ${flag}\n${USAGE}`)
+    // A number flag without its value, or with a value that starts with '-' (parseArgs will not take "--seed -1").
+    const name = flag.replace(/^-+/, '')
+    if (err.code === 'ERR_PARSE_ARGS_INVALID_OPTION_VALUE' && isIntFlag(name)) {
+      const at = argv.indexOf(flag)
+      intArg(flag, at >= 0 ? argv[at + 1] : undefined, ...INT_FLAGS[name])
+    }
+    fail(`${err.message.split('\n')[0]}\n${USAGE}`)
   }
+  const { values, positionals } = parsed
+  if (values.help) { process.stdout.write(`${USAGE}\n`); process.exit(0) }
+  if (positionals.length > 1) fail(`more than one scenario file given (${positionals.join(', ')})\n${USAGE}`)
+  const file = positionals[0]
   if (file === undefined) fail(`no scenario file given\n${USAGE}`)
-  return { file, rays, seed, threads, json }
+  const int = (name: IntFlag) => (values[name] === undefined ? undefined : intArg(`--${name}`, values[name], ...INT_FLAGS[name]))
+  return { file, rays: int('rays'), seed: int('seed'), threads: int('threads'), json: values.json === true }
 }
 
 function pm(v: number, e: number, digits = 4): string {
@@ -75,7 +95,7 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
 }
 
 async function main() {
-  const args = parseArgs(process.argv.slice(2))
+  const args = readArgs(process.argv.slice(2))
   let text: string
   try {
     text = readFileSync(args.file, 'utf8')
