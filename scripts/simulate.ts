@@ -1,14 +1,14 @@
 // Lensfield simulate CLI: trace a scenario file on a piscina pool and print the figures (each with its unit and
 // ± standard error), or with --json one JSON object on the last line of stdout. Exit 2 on a bad file, bad JSON or
 // an invalid scenario (the field is named); exit 1 on an internal failure.
-//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]
+//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--json]
 import { readFileSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { parseScenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
 import { traceOnPool } from './trace-pool'
 
-const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]'
+const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--json]'
 
 function fail(msg: string, code = 2): never {
   process.stderr.write(`simulate: ${msg}\n`)
@@ -25,19 +25,25 @@ function parseArgs(argv: string[]) {
   let file: string | undefined
   let rays: number | undefined, seed: number | undefined, threads: number | undefined
   let json = false
+  let companion: 'quadrature' | 'traced' | undefined
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i]!
     if (a === '--json') json = true
     else if (a === '--rays') rays = intArg('--rays', argv[++i], 1, 1e10)
     else if (a === '--seed') seed = intArg('--seed', argv[++i], 0, 0xffffffff)
     else if (a === '--threads') threads = intArg('--threads', argv[++i], 1, 256)
+    else if (a === '--companion') {
+      const v = argv[++i]
+      if (v !== 'quadrature' && v !== 'traced') fail(`--companion must be quadrature or traced: got ${v ?? '(nothing)'}\n${USAGE}`)
+      companion = v
+    }
     else if (a === '--help' || a === '-h') { process.stdout.write(`${USAGE}\n`); process.exit(0) }
     else if (a.startsWith('--')) fail(`unknown option ${a}\n${USAGE}`)
     else if (file === undefined) file = a
     else fail(`more than one scenario file given (${file}, ${a})\n${USAGE}`)
   }
   if (file === undefined) fail(`no scenario file given\n${USAGE}`)
-  return { file, rays, seed, threads, json }
+  return { file, rays, seed, threads, json, companion }
 }
 
 function pm(v: number, e: number, digits = 4): string {
@@ -53,7 +59,7 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
   const lines = [
     `rays                 ${r.rays} (seed ${r.seed}, ${threads} thread${threads > 1 ? 's' : ''}, ${seconds.toFixed(1)} s)${r.fresnel ? `, Fresnel ${r.fresnel}` : ''}`,
     `extraction           ${pct(r.extraction, r.extractionStdErr)} of emitted flux`,
-    `planar extraction    ${pct(r.planar.extraction, r.planar.extractionStdErr)} of emitted flux`,
+    `planar extraction    ${pct(r.planar.extraction, r.planar.extractionStdErr)} of emitted flux${r.planar.method === 'quadrature' ? ' (quadrature, exact)' : ''}`,
     `enhancement          ${pm(r.enhancement, r.enhancementStdErr, 3)} × planar`,
     `losses               reflector ${pct(L.reflector, E.reflector)}, substrate ${pct(L.substrate, E.substrate)},`,
     `                     waveguided ${pct(L.waveguided, E.waveguided)}, trapped ${pct(L.trapped, E.trapped)}, unresolved ${pct(L.unresolved, E.unresolved)}`,
@@ -98,7 +104,7 @@ async function main() {
   const t0 = performance.now()
   let lastDraw = 0
   const { result } = await traceOnPool(sc, {
-    rays, seed, threads,
+    rays, seed, threads, companion: args.companion,
     onProgress: tty
       ? (done, total) => {
           const now = performance.now()

@@ -7,7 +7,7 @@ import { fileURLToPath } from 'node:url'
 import { Piscina } from 'piscina'
 import type { Scenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
-import { createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, type RunTallies } from '../shared/optics'
+import { companionFor, type CompanionMethod, createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, tracesCompanion, type RunTallies } from '../shared/optics'
 
 const root = fileURLToPath(new URL('..', import.meta.url))
 
@@ -70,18 +70,20 @@ export interface PoolRunOptions {
   threads: number
   pool?: Piscina
   chunkRays?: number
+  /** The planar companion by quadrature (default) or traced on its own stream. */
+  companion?: CompanionMethod
   onProgress?: (raysDone: number, raysTotal: number) => void
 }
 
 export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{ result: TraceResult; tallies: RunTallies }> {
   const pool = opts.pool ?? (await createTracePoolReady(opts.threads))
   const chunks = planChunks(opts.rays, opts.chunkRays)
-  const total: RunTallies = { device: createTally(), planar: sc.lensArray ? createTally() : null }
+  const total: RunTallies = { device: createTally(), planar: tracesCompanion(sc, opts.companion) ? createTally() : null }
   let done = 0
   try {
     await Promise.all(
       chunks.map(async ([firstRay, rayCount]) => {
-        const buf = (await pool.run({ scenario: sc, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
+        const buf = (await pool.run({ scenario: sc, companion: opts.companion, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
         mergeRunTallies(total, runTalliesFromBuffer(buf))
         done += rayCount
         opts.onProgress?.(done, opts.rays)
@@ -90,5 +92,5 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, companionFor(sc, total)), tallies: total }
 }

@@ -6,6 +6,7 @@ import { and, eq, inArray, sql } from 'drizzle-orm'
 import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres'
 import type pg from 'pg'
 import { ENGINE_VERSION } from '../../shared/optics/version'
+import { tracesCompanion } from '../../shared/optics/run'
 import { scenarioSchema, type Scenario } from '../../shared/types/scenario'
 import {
   AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, type Figure, type SweepAxis, type SweepCell,
@@ -154,7 +155,7 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
   const raysPerCell = targetStdErr === null ? (p.rays ?? base.trace.rays) : null
   // First round: the whole count, or (with a target) one batch to measure the spread from.
   const firstRound = raysPerCell ?? Math.min(settings.batchRays, rayCap!)
-  const companion = (c: SweepCell) => (c.feasible && c.scenario.lensArray ? 2 : 1)
+  const companion = (c: SweepCell) => (c.feasible && tracesCompanion(c.scenario) ? 2 : 1) // quadrature companions cost no rays
   const cost = feasible.reduce((n, c) => n + (raysPerCell ?? rayCap!) * companion(c), 0)
   const planned = feasible.reduce((n, c) => n + firstRound * companion(c), 0)
   // Pilot trace before anything is stored: refuse what no batch could finish, keep warnings for what is costly.

@@ -74,6 +74,9 @@ describe('worker task', () => {
     expect(t.device[T_RAYS]).toBe(4095)
     const full = runTalliesFromBuffer(traceTask({ scenario: example, firstRay: 0, rayCount: 5000, seed: 1 }))
     expect(full.device[T_RAYS]).toBe(5000)
-    expect(full.planar![T_RAYS]).toBe(5000)
+    expect(full.planar).toBeNull() // the companion comes from quadrature: no companion rays
+    const traced = runTalliesFromBuffer(traceTask({ scenario: example, companion: 'traced', firstRay: 0, rayCount: 5000, seed: 1 }))
+    expect(Array.from(traced.device)).toEqual(Array.from(full.device))
+    expect(traced.planar![T_RAYS]).toBe(5000)
   })
 })
