@@ -490,3 +490,12 @@ export function flatCompanion(sc: Scenario): FlatCompanion | null {
   cache.set(key, r)
   return r
 }
+
+/**
+ * The launch density per unit μ (signed emission cosine in the emitter; azimuth uniform) of a packed scene, as the
+ * launch samples it: isotropic ½, Lambertian 2μ (μ > 0), a table's piecewise-constant grid. Per steradian: f(μ)/2π.
+ */
+export function emissionDensityOf(scene: PackedScene): (mu: number) => number {
+  const l = launchOf(scene)
+  return (mu) => launchDensity(l, mu)
+}
