@@ -3,13 +3,14 @@
 //   npm run bench:precision [-- --rays 2000000]
 // enhancement: extraction / flat-device extraction, with the companion traced (stream 1, as many rays as the
 // device) or by quadrature (exact, σ from the device alone). On-axis luminance gain: the device's on-axis luminance
-// (θ < 5°, binned) over the flat device's, the same two ways. Reciprocal luminance and paired sweeps are not in
-// this bench yet (not built).
+// (θ < 5°, binned) over the flat device's, the same two ways, and with the device's on-axis luminance from
+// backward paths (reciprocal.ts, cos-weighted over the same 5° cone) over the exact flat device. Paired sweeps
+// (common random numbers) are not built yet.
 import { loadavg } from 'node:os'
 import { parseArgs } from 'node:util'
 import {
   createTally, flatCompanionOfScene, mergeTally, ON_AXIS_CONE_DEG, packScene, planChunks, prepareRun, STREAM_DEVICE, STREAM_PLANAR, summarize,
-  traceRange, type Tally,
+  reciprocalLuminance, traceRange, type Tally,
 } from '../shared/optics'
 import { scenarioSchema } from '../shared/types/scenario'
 import { benchScenarios } from './scenarios'
@@ -70,4 +71,14 @@ console.log(`on-axis luminance gain (θ < ${ON_AXIS_CONE_DEG}°, device binned)`
 console.log(row('traced companion', gT, gTe, dev.seconds + pl.seconds))
 console.log(row('quadrature companion', gQ, gQe, dev.seconds + quadSeconds))
 console.log(`  figure of merit, quadrature / traced: ×${(fom(gQe, dev.seconds + quadSeconds) / fom(gTe, dev.seconds + pl.seconds)).toFixed(2)}`)
+const paths = Math.max(10_000, Math.round(rays / 20))
+reciprocalLuminance(run.device, { bandLoDeg: 0, bandHiDeg: ON_AXIS_CONE_DEG }, 5000, 7) // warm-up
+const r0 = performance.now()
+const rec = reciprocalLuminance(run.device, { bandLoDeg: 0, bandHiDeg: ON_AXIS_CONE_DEG }, paths, 1)
+const recSeconds = (performance.now() - r0) / 1000
+const gR = rec.relative / qAxis, gRe = rec.relativeStdErr / qAxis
+console.log(row(`reciprocal (${paths} paths), quadrature`, gR, gRe, recSeconds + quadSeconds))
+const rR = fom(gRe, recSeconds + quadSeconds) / fom(gTe, dev.seconds + pl.seconds)
+console.log(`  figure of merit, reciprocal + quadrature / binned + traced: ×${rR.toFixed(1)} (target ≥ 30); vs binned + quadrature ×${(fom(gRe, recSeconds + quadSeconds) / fom(gQe, dev.seconds + quadSeconds)).toFixed(1)}`)
+console.log(`  reciprocal − binned device on-axis luminance: z ${((rec.relative - dL) / Math.hypot(rec.relativeStdErr, dLe)).toFixed(2)}`)
 console.log(`load average after: ${loadavg().map((x) => x.toFixed(2)).join(' ')}`)

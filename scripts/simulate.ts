@@ -1,14 +1,16 @@
 // Lensfield simulate CLI: trace a scenario file on a piscina pool and print the figures (each with its unit and
 // ± standard error), or with --json one JSON object on the last line of stdout. Exit 2 on a bad file, bad JSON or
 // an invalid scenario (the field is named); exit 1 on an internal failure.
-//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--json]
+//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--directions 0,30,60] [--json]
+//   --directions: reciprocal luminance at these θ (deg, φ = 0), min(rays, 100 000) backward paths each (extended source)
 import { readFileSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { parseScenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
+import { packScene, reciprocalDirections } from '../shared/optics'
 import { traceOnPool } from './trace-pool'
 
-const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--json]'
+const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--directions 0,30,60] [--json]'
 
 function fail(msg: string, code = 2): never {
   process.stderr.write(`simulate: ${msg}\n`)
@@ -26,6 +28,7 @@ function parseArgs(argv: string[]) {
   let rays: number | undefined, seed: number | undefined, threads: number | undefined
   let json = false
   let companion: 'quadrature' | 'traced' | undefined
+  let directions: number[] | undefined
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i]!
     if (a === '--json') json = true
@@ -37,13 +40,18 @@ function parseArgs(argv: string[]) {
       if (v !== 'quadrature' && v !== 'traced') fail(`--companion must be quadrature or traced: got ${v ?? '(nothing)'}\n${USAGE}`)
       companion = v
     }
+    else if (a === '--directions') {
+      const v = argv[++i] ?? ''
+      directions = v.split(',').map(Number)
+      if (v === '' || directions.some((d) => !Number.isFinite(d) || d < 0 || d >= 90)) fail(`--directions must be viewing angles θ in degrees from 0 to below 90, comma-separated: got ${v || '(nothing)'}\n${USAGE}`)
+    }
     else if (a === '--help' || a === '-h') { process.stdout.write(`${USAGE}\n`); process.exit(0) }
     else if (a.startsWith('--')) fail(`unknown option ${a}\n${USAGE}`)
     else if (file === undefined) file = a
     else fail(`more than one scenario file given (${file}, ${a})\n${USAGE}`)
   }
   if (file === undefined) fail(`no scenario file given\n${USAGE}`)
-  return { file, rays, seed, threads, json, companion }
+  return { file, rays, seed, threads, json, companion, directions }
 }
 
 function pm(v: number, e: number, digits = 4): string {
@@ -73,6 +81,9 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
       `                     planar ${pm(p.planarOnAxisRelative, p.planarOnAxisRelativeStdErr, 3)}, on-axis enhancement ${pm(p.onAxisEnhancement, p.onAxisEnhancementStdErr, 3)} ×`,
     )
   }
+  for (const d of r.luminance.directions ?? []) {
+    lines.push(`reciprocal luminance θ ${String(d.thetaDeg).padStart(2)}°, φ ${d.phiDeg}°: ${pm(d.relative, d.relativeStdErr, 4)} × Lambertian of the emitted flux`)
+  }
   lines.push('intensity in air (1/sr per emitted ray, azimuth-averaged):')
   for (const th of [0, 10, 20, 30, 40, 50, 60, 70, 80]) {
     lines.push(`  θ ${String(th).padStart(2)}–${th + 1}°        ${pm(r.intensity.perSteradian[th]!, r.intensity.perSteradianStdErr[th]!, 4)} /sr   L/L_Lamb ${pm(r.luminance.relative[th]!, r.luminance.relativeStdErr[th]!, 3)}`)
@@ -97,6 +108,7 @@ async function main() {
   const parsed = parseScenario(data)
   if (!parsed.ok) fail(`${args.file} is not a valid scenario:\n  ${parsed.errors.join('\n  ')}`)
   const sc = parsed.scenario
+  if (args.directions && sc.emitter.source.shape !== 'extended') fail('--directions needs an extended source: reciprocal luminance is the film average, a pixel footprint is not')
   const rays = args.rays ?? sc.trace.rays
   const seed = args.seed ?? sc.trace.seed
   const threads = args.threads ?? Math.max(1, availableParallelism())
@@ -116,6 +128,9 @@ async function main() {
         }
       : undefined,
   })
+  if (args.directions) {
+    result.luminance.directions = reciprocalDirections(packScene(sc), args.directions.map((thetaDeg) => ({ thetaDeg, phiDeg: 0 })), Math.min(rays, 100_000), seed)
+  }
   const seconds = (performance.now() - t0) / 1000
   if (args.json) process.stdout.write(`${JSON.stringify({ ...result, threads, seconds })}\n`)
   else process.stdout.write(`${summaryText(result, threads, seconds)}\n`)

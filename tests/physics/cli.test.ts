@@ -60,6 +60,14 @@ describe('simulate CLI', () => {
     expect(bad.status).toBe(2)
     expect(bad.stderr).toContain('--companion must be quadrature or traced')
   })
+  it('--directions adds reciprocal luminance at those θ (φ 0) with σ, and refuses angles outside 0–90° — seed 1304', () => {
+    const r = JSON.parse(execFileSync('node', ['scripts/simulate.mjs', `${dir}/ok.json`, '--rays', '5000', '--seed', '1304', '--threads', '1', '--directions', '0,45', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    expect(r.luminance.directions.map((d: { thetaDeg: number }) => d.thetaDeg)).toEqual([0, 45])
+    for (const d of r.luminance.directions) { expect(d.phiDeg).toBe(0); expect(d.relative).toBeGreaterThan(0); expect(d.relativeStdErr).toBeGreaterThan(0) }
+    const bad = run([`${dir}/ok.json`, '--directions', '0,95'])
+    expect(bad.status).toBe(2)
+    expect(bad.stderr).toContain('--directions must be viewing angles')
+  })
   it('exit 2 with the field named for an invalid scenario, bad JSON, a missing file, a bad option', () => {
     writeFileSync(`${dir}/sag.json`, JSON.stringify({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } }))
     writeFileSync(`${dir}/broken.json`, '{ "emitter": ')
