@@ -1,19 +1,23 @@
 // Lensfield simulate CLI: trace a scenario file on a piscina pool and print the figures (each with its unit and
 // ± standard error), or with --json one JSON object on the last line of stdout. Exit 2 on a bad file, bad JSON or
 // an invalid scenario (the field is named); exit 1 on an internal failure.
-//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]
+//   npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--directions 0,30,60] [--json]
+//   --directions: reciprocal luminance at these θ (deg, φ = 0), min(rays, 100 000) backward paths each (extended source)
 import { readFileSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { parseArgs as parseCliArgs } from 'node:util'
 import { parseScenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
+import { packScene, reciprocalDirections } from '../shared/optics'
 import { traceOnPool } from './trace-pool'
 
-const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--json]'
+const USAGE = 'usage: npm run simulate -- <scenario.json> [--rays N] [--seed S] [--threads T] [--companion quadrature|traced] [--directions 0,30,60] [--json]'
 const CLI_OPTIONS = {
   rays: { type: 'string' },
   seed: { type: 'string' },
   threads: { type: 'string' },
+  companion: { type: 'string' },
+  directions: { type: 'string' },
   json: { type: 'boolean' },
   help: { type: 'boolean', short: 'h' },
 } as const
@@ -36,7 +40,7 @@ const isIntFlag = (name: string): name is IntFlag => Object.hasOwn(INT_FLAGS, na
 
 /** The command line (node:util parseArgs); every refusal names the flag and repeats the usage. */
 function readArgs(argv: string[]) {
-  let parsed: { values: { [K in IntFlag]?: string } & { json?: boolean, help?: boolean }, positionals: string[] }
+  let parsed: { values: { [K in IntFlag]?: string } & { companion?: string, directions?: string, json?: boolean, help?: boolean }, positionals: string[] }
   try {
     parsed = parseCliArgs({ args: argv, options: CLI_OPTIONS, allowPositionals: true, strict: true })
   } catch (e) {
@@ -57,7 +61,19 @@ function readArgs(argv: string[]) {
   const file = positionals[0]
   if (file === undefined) fail(`no scenario file given\n${USAGE}`)
   const int = (name: IntFlag) => (values[name] === undefined ? undefined : intArg(`--${name}`, values[name], ...INT_FLAGS[name]))
-  return { file, rays: int('rays'), seed: int('seed'), threads: int('threads'), json: values.json === true }
+  let companion: 'quadrature' | 'traced' | undefined
+  if (values.companion !== undefined) {
+    const v = values.companion
+    if (v !== 'quadrature' && v !== 'traced') fail(`--companion must be quadrature or traced: got ${v || '(nothing)'}\n${USAGE}`)
+    companion = v
+  }
+  let directions: number[] | undefined
+  if (values.directions !== undefined) {
+    const v = values.directions
+    directions = v.split(',').map(Number)
+    if (v === '' || directions.some((d) => !Number.isFinite(d) || d < 0 || d >= 90)) fail(`--directions must be viewing angles θ in degrees from 0 to below 90, comma-separated: got ${v || '(nothing)'}\n${USAGE}`)
+  }
+  return { file, rays: int('rays'), seed: int('seed'), threads: int('threads'), json: values.json === true, companion, directions }
 }
 
 function pm(v: number, e: number, digits = 4): string {
@@ -73,7 +89,7 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
   const lines = [
     `rays                 ${r.rays} (seed ${r.seed}, ${threads} thread${threads > 1 ? 's' : ''}, ${seconds.toFixed(1)} s)${r.fresnel ? `, Fresnel ${r.fresnel}` : ''}`,
     `extraction           ${pct(r.extraction, r.extractionStdErr)} of emitted flux`,
-    `planar extraction    ${pct(r.planar.extraction, r.planar.extractionStdErr)} of emitted flux`,
+    `planar extraction    ${pct(r.planar.extraction, r.planar.extractionStdErr)} of emitted flux${r.planar.method === 'quadrature' ? ' (quadrature, exact)' : ''}`,
     `enhancement          ${pm(r.enhancement, r.enhancementStdErr, 3)} × planar`,
     `losses               reflector ${pct(L.reflector, E.reflector)}, substrate ${pct(L.substrate, E.substrate)},`,
     `                     waveguided ${pct(L.waveguided, E.waveguided)}, trapped ${pct(L.trapped, E.trapped)}, unresolved ${pct(L.unresolved, E.unresolved)}`,
@@ -86,6 +102,9 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
       `pixel footprint      extraction ${pct(p.extraction, p.extractionStdErr)}, on-axis luminance ${pm(p.onAxisRelative, p.onAxisRelativeStdErr, 3)} × Lambertian`,
       `                     planar ${pm(p.planarOnAxisRelative, p.planarOnAxisRelativeStdErr, 3)}, on-axis enhancement ${pm(p.onAxisEnhancement, p.onAxisEnhancementStdErr, 3)} ×`,
     )
+  }
+  for (const d of r.luminance.directions ?? []) {
+    lines.push(`reciprocal luminance θ ${String(d.thetaDeg).padStart(2)}°, φ ${d.phiDeg}°: ${pm(d.relative, d.relativeStdErr, 4)} × Lambertian of the emitted flux`)
   }
   lines.push('intensity in air (1/sr per emitted ray, azimuth-averaged):')
   for (const th of [0, 10, 20, 30, 40, 50, 60, 70, 80]) {
@@ -111,6 +130,7 @@ async function main() {
   const parsed = parseScenario(data)
   if (!parsed.ok) fail(`${args.file} is not a valid scenario:\n  ${parsed.errors.join('\n  ')}`)
   const sc = parsed.scenario
+  if (args.directions && sc.emitter.source.shape !== 'extended') fail('--directions needs an extended source: reciprocal luminance is the film average, a pixel footprint is not')
   const rays = args.rays ?? sc.trace.rays
   const seed = args.seed ?? sc.trace.seed
   const threads = args.threads ?? Math.max(1, availableParallelism())
@@ -118,7 +138,7 @@ async function main() {
   const t0 = performance.now()
   let lastDraw = 0
   const { result } = await traceOnPool(sc, {
-    rays, seed, threads,
+    rays, seed, threads, companion: args.companion,
     onProgress: tty
       ? (done, total) => {
           const now = performance.now()
@@ -130,6 +150,9 @@ async function main() {
         }
       : undefined,
   })
+  if (args.directions) {
+    result.luminance.directions = reciprocalDirections(packScene(sc), args.directions.map((thetaDeg) => ({ thetaDeg, phiDeg: 0 })), Math.min(rays, 100_000), seed)
+  }
   const seconds = (performance.now() - t0) / 1000
   if (args.json) process.stdout.write(`${JSON.stringify({ ...result, threads, seconds })}\n`)
   else process.stdout.write(`${summaryText(result, threads, seconds)}\n`)

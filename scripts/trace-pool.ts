@@ -1,52 +1,44 @@
 // Runs a scenario on a piscina pool over workers/trace (the same task entry the job system uses): fixed-size
 // chunks (boundaries independent of the thread count), tallies merged as they arrive (integer counts, so the order
 // does not matter). Used by the simulate CLI, the bench and the thread-invariance test.
-import { existsSync, readdirSync, renameSync, statSync } from 'node:fs'
-import { join } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { existsSync, statSync } from 'node:fs'
+import { dirname, join } from 'node:path'
+import { fileURLToPath, pathToFileURL } from 'node:url'
 import type { Piscina } from 'piscina'
 import type { Scenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
-import { createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, type RunTallies } from '../shared/optics'
+import { companionFor, type CompanionMethod, createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, tracesCompanion, type RunTallies } from '../shared/optics'
 import { createTracePool, TRACE_WORKER_ENV } from '../server/queue/pool'
 
-const root = fileURLToPath(new URL('..', import.meta.url))
+/** The checkout (the folder with package.json above this file: scripts/ from source, dist/cli/ when bundled). */
+function repoRoot(): string {
+  let dir = dirname(fileURLToPath(import.meta.url))
+  while (!existsSync(join(dir, 'package.json')) && dirname(dir) !== dir) dir = dirname(dir)
+  return `${dir}/`
+}
+const root = repoRoot()
+
+/** scripts/build-workers.mjs, loaded by path (it brings esbuild; the bundled CLI keeps it external). */
+async function builder(): Promise<typeof import('./build-workers.mjs')> {
+  return import(pathToFileURL(`${root}scripts/build-workers.mjs`).href)
+}
 
 /**
  * The worker file. By default the bundle dist/workers/trace.mjs, rebuilt first when any source under shared/ or
  * workers/ is newer (one esbuild call, ~0.3 s): a bundled worker runs the hot loop ~1.6× faster than the same
  * TypeScript loaded module by module through tsx in the worker (measured 2026-12-01, 390k vs 235k rays/s), and
  * vitest cannot give workers a TypeScript loader at all. LENSFIELD_TRACE_WORKER=ts uses workers/trace.ts (needs tsx in
- * the parent), LENSFIELD_TRACE_WORKER=<path> a given compiled file (the same variable the server's pool reads).
+ * the parent), LENSFIELD_TRACE_WORKER=<path> a given compiled file (the same variable the server's pool reads;
+ * scripts/simulate.mjs sets it after its own staleness check).
  */
 export async function prepareWorker(): Promise<string> {
   const forced = process.env[TRACE_WORKER_ENV]
   if (forced === 'ts') return `${root}workers/trace.ts`
   if (forced) return forced
   const built = `${root}dist/workers/trace.mjs`
-  if (!existsSync(built) || newestSourceMtimeMs() > statSync(built).mtimeMs) {
-    const { buildTraceWorker } = await import('./build-workers.mjs')
-    // written beside and renamed, so a concurrent CLI never loads a half-written file
-    const tmp = `${built}.${process.pid}.tmp.mjs`
-    await buildTraceWorker(tmp)
-    renameSync(tmp, built)
-    try { renameSync(`${tmp}.map`, `${built}.map`) } catch { /* no source map: fine */ }
-  }
+  const b = await builder()
+  if (!existsSync(built) || b.newestSourceMtimeMs() > statSync(built).mtimeMs) await b.buildAtomically(built, b.buildTraceWorker)
   return built
-}
-
-function newestSourceMtimeMs(): number {
-  let newest = 0
-  const walk = (dir: string) => {
-    for (const e of readdirSync(dir, { withFileTypes: true })) {
-      const p = join(dir, e.name)
-      if (e.isDirectory()) walk(p)
-      else if (/\.(ts|mjs|js)$/.test(e.name)) newest = Math.max(newest, statSync(p).mtimeMs)
-    }
-  }
-  walk(`${root}shared`)
-  walk(`${root}workers`)
-  return newest
 }
 
 /** A pool (server/queue/pool.ts, the job system's own) over the prepared worker. */
@@ -60,18 +52,20 @@ export interface PoolRunOptions {
   threads: number
   pool?: Piscina
   chunkRays?: number
+  /** The planar companion by quadrature (default) or traced on its own stream. */
+  companion?: CompanionMethod
   onProgress?: (raysDone: number, raysTotal: number) => void
 }
 
 export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{ result: TraceResult; tallies: RunTallies }> {
   const pool = opts.pool ?? (await createTracePoolReady(opts.threads))
   const chunks = planChunks(opts.rays, opts.chunkRays)
-  const total: RunTallies = { device: createTally(), planar: sc.lensArray ? createTally() : null }
+  const total: RunTallies = { device: createTally(), planar: tracesCompanion(sc, opts.companion) ? createTally() : null }
   let done = 0
   try {
     await Promise.all(
       chunks.map(async ([firstRay, rayCount]) => {
-        const buf = (await pool.run({ scenario: sc, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
+        const buf = (await pool.run({ scenario: sc, companion: opts.companion, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
         mergeRunTallies(total, runTalliesFromBuffer(buf))
         done += rayCount
         opts.onProgress?.(done, opts.rays)
@@ -80,5 +74,5 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, companionFor(sc, total)), tallies: total }
 }

@@ -1,6 +1,7 @@
 // A run's plan, as pure functions (no database, no clock, no randomness): the grid of cells, the seed of each,
 // the first round of rays and its batches, the rays held against the team's limit, the default name, and the
 // precision rule that decides, when a cell's last batch lands, whether it is done or gets another round.
+import { tracesCompanion } from '../../shared/optics/run'
 import type { Scenario } from '../../shared/types/scenario'
 import { AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, type SweepAxis, type SweepCell } from '../../shared/types/sweep'
 import { DEFAULT_FIGURE, figureUnavailable, type Figure } from '../../shared/types/figures'
@@ -15,11 +16,12 @@ export class RunRequestError extends Error {
 
 /**
  * Rays the engine traces for each of the user's rays: the device, plus its planar companion (the same stack without
- * lenses, traced beside it) when the design has a lens film. The one place that converts between the user's rays
- * and traced rays (the unit of the team's ray limit and of runs.rays_planned / rays_done).
+ * lenses) when the design has a lens film and the companion cannot be had by quadrature (shared/optics/run.ts
+ * tracesCompanion). The one place that converts between the user's rays and traced rays (the unit of the team's
+ * ray limit and of runs.rays_planned / rays_done).
  */
-export function tracedRaysPerRay(scenario: Pick<Scenario, 'lensArray'>): number {
-  return scenario.lensArray ? 2 : 1
+export function tracedRaysPerRay(scenario: Scenario): number {
+  return tracesCompanion(scenario) ? 2 : 1
 }
 
 export interface PlannedBatch { batchIndex: number; firstRay: number; rayCount: number }

@@ -1,10 +1,14 @@
 // A whole run: the lens device and its planar companion (the same stack without lenses) traced with the same ray
 // count on independent streams (stream 0 and stream 1 of the same seed), so the enhancement's standard error
 // follows (σE/E)² = (σ1/η1)² + (σ2/η2)². A planar scenario is its own companion (enhancement exactly 1, σ 0).
+// By default (companion 'quadrature') the companion is not traced at all but computed exactly (flat-quadrature.ts)
+// whenever that applies (an extended source, not a thin-film source): no companion rays, σ of the enhancement from
+// the device alone, σE/E = σ1/η1. 'traced' keeps the traced companion as the cross-check.
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import type { FresnelMode, Scenario } from '../types/scenario'
+import { scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
 import type { Losses, TraceResult } from '../types/result'
+import { flatCompanion, flatQuadratureApplies, type FlatCompanion } from './flat-quadrature'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
@@ -18,9 +22,12 @@ export const STREAM_PLANAR = 1
 /** On-axis luminance is estimated over this cone (deg): a compromise between bias (<0.2 % for smooth profiles) and noise. */
 export const ON_AXIS_CONE_DEG = 5
 
+/** How the planar companion is obtained: exactly by quadrature (default; when it applies) or traced. */
+export type CompanionMethod = 'quadrature' | 'traced'
+
 export interface RunScenes {
   device: PackedScene
-  /** null when the device itself is planar. */
+  /** The traced companion's scene; null when the device itself is planar or the companion is computed by quadrature. */
   planar: PackedScene | null
 }
 
@@ -29,9 +36,25 @@ export interface RunTallies {
   planar: Tally | null
 }
 
-export function prepareRun(sc: Scenario): RunScenes {
+/** Whether a run of this scenario traces its planar companion (doubling its rays): lenses, and no quadrature for it. */
+export function tracesCompanion(sc: Scenario, companion: CompanionMethod = 'quadrature'): boolean {
+  return sc.lensArray !== null && (companion === 'traced' || !flatQuadratureApplies(sc))
+}
+
+export function prepareRun(sc: Scenario, opts: { companion?: CompanionMethod } = {}): RunScenes {
   const device = packScene(sc)
-  return { device, planar: device[S_HAS_LENS] ? packScene(sc, { planar: true }) : null }
+  return { device, planar: device[S_HAS_LENS] && tracesCompanion(sc, opts.companion) ? packScene(sc, { planar: true }) : null }
+}
+
+/**
+ * The companion summarize needs besides the tallies: the quadrature block when the tallies hold no traced companion
+ * and the device has lenses, else null. Takes a scenario as stored (validated again here); null if it is not valid.
+ */
+export function companionFor(scenario: unknown, t: RunTallies): FlatCompanion | null {
+  if (t.planar) return null
+  const parsed = scenarioSchema.safeParse(scenario)
+  if (!parsed.success || parsed.data.lensArray === null) return null
+  return flatCompanion(parsed.data)
 }
 
 /** Fixed chunk plan for `rays` rays: [firstRay, rayCount] pairs. */
@@ -64,13 +87,13 @@ export function mergeRunTallies(dst: RunTallies, src: RunTallies): RunTallies {
 }
 
 /** Single-thread convenience: the whole scenario (ray count and seed from the scenario unless given). */
-export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number } = {}): TraceResult {
+export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number; companion?: CompanionMethod } = {}): TraceResult {
   const rays = opts.rays ?? sc.trace.rays
   const seed = opts.seed ?? sc.trace.seed
-  const run = prepareRun(sc)
+  const run = prepareRun(sc, { companion: opts.companion })
   const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
-  return summarize(total, seed, sc.trace.fresnel)
+  return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : flatCompanion(sc))
 }
 
 function binomialErr(count: number, n: number): number {
@@ -115,8 +138,12 @@ function angularProfile(t: Tally) {
   return { perSteradian, perSteradianStdErr, luminanceRelative, luminanceRelativeStdErr }
 }
 
-/** `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was kept). */
-export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode): TraceResult {
+/**
+ * `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was
+ * kept). `flat`: the companion by quadrature (flatCompanion / companionFor) when the tallies hold no traced one;
+ * without either, the device is its own companion (a planar design).
+ */
+export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode, flat?: FlatCompanion | null): TraceResult {
   const d = t.device
   const n = d[T_RAYS]!
   const ext = n > 0 ? d[T_EXTRACTED]! / n : 0
@@ -195,7 +222,12 @@ export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode): T
   }
   let planarExt = ext, planarErr = extErr, planarLosses = L.v
   let enh = 1, enhErr = 0
-  if (t.planar) {
+  let planarBlock: TraceResult['planar'] | null = null
+  if (!t.planar && flat) {
+    planarBlock = flat
+    enh = flat.extraction > 0 ? ext / flat.extraction : NaN
+    enhErr = flat.extraction > 0 && ext > 0 ? enh * (extErr / ext) : NaN
+  } else if (t.planar) {
     const p = t.planar
     const np = p[T_RAYS]!
     planarExt = np > 0 ? p[T_EXTRACTED]! / np : 0
@@ -229,7 +261,7 @@ export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode): T
       halfLuminanceAngleStdErrDeg: halfErr,
     },
     // The companion's own angular profile, so a result page overlays the flat device of this very stack.
-    planar: { extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses, ...angularProfile(t.planar ?? d) },
+    planar: planarBlock ?? { method: 'traced', extraction: planarExt, extractionStdErr: planarErr, losses: planarLosses, ...angularProfile(t.planar ?? d) },
     pixel,
     enhancement: enh,
     enhancementStdErr: enhErr,

@@ -21,23 +21,23 @@ const example = {
 // Outside a pool the task returns piscina's move() wrapper: unwrap it to the transferred buffer.
 const traceTask = (t: TraceTask): ArrayBuffer => (traceTaskRaw(t) as unknown as Record<symbol, ArrayBuffer>)[valueSymbol]!
 function run(args: string[]) {
-  return spawnSync('npx', ['tsx', 'scripts/simulate.ts', ...args], { cwd: root, encoding: 'utf8' })
+  return spawnSync('node', ['scripts/simulate.mjs', ...args], { cwd: root, encoding: 'utf8' })
 }
 
 describe('simulate CLI', () => {
   it('--json prints one JSON object on the last stdout line; the same seed gives the same numbers on 1 and 2 threads (seed 1301)', () => {
     writeFileSync(`${dir}/ok.json`, JSON.stringify(example))
-    const a = JSON.parse(execFileSync('npx', ['tsx', 'scripts/simulate.ts', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '1', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
-    const b = JSON.parse(execFileSync('npx', ['tsx', 'scripts/simulate.ts', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '2', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const a = JSON.parse(execFileSync('node', ['scripts/simulate.mjs', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '1', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const b = JSON.parse(execFileSync('node', ['scripts/simulate.mjs', `${dir}/ok.json`, '--rays', '40000', '--seed', '1301', '--threads', '2', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
     expect(a.rays).toBe(40000)
     expect(a.seed).toBe(1301)
     for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'enhancementStdErr', 'losses', 'intensity', 'luminance', 'planar']) expect(b[k]).toEqual(a[k])
   })
   it('accepts Fresnel mode "polarized" (the result says so; 1 and 2 threads agree, seed 1302) and refuses an unknown mode naming the Fresnel mode', () => {
     writeFileSync(`${dir}/pol.json`, JSON.stringify({ ...example, trace: { ...example.trace, fresnel: 'polarized' } }))
-    const args = (t: string) => ['tsx', 'scripts/simulate.ts', `${dir}/pol.json`, '--rays', '30000', '--seed', '1302', '--threads', t, '--json']
-    const a = JSON.parse(execFileSync('npx', args('1'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
-    const b = JSON.parse(execFileSync('npx', args('2'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const args = (t: string) => ['scripts/simulate.mjs', `${dir}/pol.json`, '--rays', '30000', '--seed', '1302', '--threads', t, '--json']
+    const a = JSON.parse(execFileSync('node', args('1'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const b = JSON.parse(execFileSync('node', args('2'), { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
     expect(a.fresnel).toBe('polarized')
     for (const k of ['extraction', 'extractionStdErr', 'enhancement', 'intensity', 'planar']) expect(b[k]).toEqual(a[k])
     const text = run([`${dir}/pol.json`, '--rays', '5000', '--threads', '1'])
@@ -47,6 +47,26 @@ describe('simulate CLI', () => {
     const bad = run([`${dir}/badmode.json`])
     expect(bad.status).toBe(2)
     expect(bad.stderr).toContain('Fresnel mode must be one of')
+  })
+  it('the flat device comes from quadrature by default (σ 0) and is traced with --companion traced (σ > 0, within 4σ of it) — seed 1303', () => {
+    const one = (extra: string[]) => JSON.parse(execFileSync('node', ['scripts/simulate.mjs', `${dir}/ok.json`, '--rays', '30000', '--seed', '1303', '--threads', '1', '--json', ...extra], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    const q = one([]), t = one(['--companion', 'traced'])
+    expect(q.planar.method).toBe('quadrature')
+    expect(q.planar.extractionStdErr).toBe(0)
+    expect(t.planar.method).toBe('traced')
+    expect(t.extraction).toBe(q.extraction)
+    expect(Math.abs(t.planar.extraction - q.planar.extraction)).toBeLessThanOrEqual(4 * t.planar.extractionStdErr)
+    const bad = run([`${dir}/ok.json`, '--companion', 'guess'])
+    expect(bad.status).toBe(2)
+    expect(bad.stderr).toContain('--companion must be quadrature or traced')
+  })
+  it('--directions adds reciprocal luminance at those θ (φ 0) with σ, and refuses angles outside 0–90° — seed 1304', () => {
+    const r = JSON.parse(execFileSync('node', ['scripts/simulate.mjs', `${dir}/ok.json`, '--rays', '5000', '--seed', '1304', '--threads', '1', '--directions', '0,45', '--json'], { cwd: root, encoding: 'utf8' }).trim().split('\n').pop()!)
+    expect(r.luminance.directions.map((d: { thetaDeg: number }) => d.thetaDeg)).toEqual([0, 45])
+    for (const d of r.luminance.directions) { expect(d.phiDeg).toBe(0); expect(d.relative).toBeGreaterThan(0); expect(d.relativeStdErr).toBeGreaterThan(0) }
+    const bad = run([`${dir}/ok.json`, '--directions', '0,95'])
+    expect(bad.status).toBe(2)
+    expect(bad.stderr).toContain('--directions must be viewing angles')
   })
   it('exit 2 with the field named for an invalid scenario, bad JSON, a missing file, a bad option', () => {
     writeFileSync(`${dir}/sag.json`, JSON.stringify({ ...example, lensArray: { ...example.lensArray, sagUm: 6 } }))
@@ -74,6 +94,9 @@ describe('worker task', () => {
     expect(t.device[T_RAYS]).toBe(4095)
     const full = runTalliesFromBuffer(traceTask({ scenario: example, firstRay: 0, rayCount: 5000, seed: 1 }))
     expect(full.device[T_RAYS]).toBe(5000)
-    expect(full.planar![T_RAYS]).toBe(5000)
+    expect(full.planar).toBeNull() // the companion comes from quadrature: no companion rays
+    const traced = runTalliesFromBuffer(traceTask({ scenario: example, companion: 'traced', firstRay: 0, rayCount: 5000, seed: 1 }))
+    expect(Array.from(traced.device)).toEqual(Array.from(full.device))
+    expect(traced.planar![T_RAYS]).toBe(5000)
   })
 })

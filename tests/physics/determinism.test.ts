@@ -33,7 +33,7 @@ describe('chunking and thread-count invariance', () => {
     expect(Array.from(merged)).toEqual(Array.from(whole))
   })
   it('the run buffer round-trips', () => {
-    const t = traceChunk(prepareRun(sc), 0, 2000, 5)
+    const t = traceChunk(prepareRun(sc, { companion: 'traced' }), 0, 2000, 5)
     const back = runTalliesFromBuffer(runTalliesToBuffer(t))
     expect(Array.from(back.device)).toEqual(Array.from(t.device))
     expect(Array.from(back.planar!)).toEqual(Array.from(t.planar!))

@@ -49,7 +49,7 @@ describe('event budget of one call', () => {
   })
 
   it('the same rays, seed and budget give identical counts; an unspent budget changes nothing', () => {
-    const run = prepareRun(hex)
+    const run = prepareRun(hex, { companion: 'traced' }) // both streams under the budget
     const a = traceChunk(run, 1000, 5000, 4, undefined, 20_000)
     const b = traceChunk(run, 1000, 5000, 4, undefined, 20_000)
     expect(Array.from(a.device)).toEqual(Array.from(b.device))
