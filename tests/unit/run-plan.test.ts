@@ -17,6 +17,7 @@ const base = scenarioSchema.parse({
   trace: { rays: 100000, seed: 7, fresnel: 'averaged' },
 })
 const planar = { ...base, lensArray: null }
+const pixel = scenarioSchema.parse({ ...base, emitter: { ...base.emitter, source: { shape: 'disc', radiusUm: 50 } } })
 const at = new Date('2026-12-02T15:40:00Z')
 const AXES = [
   { parameter: 'lensArray.sagUm' as const, values: [2, 3] },
@@ -39,14 +40,15 @@ describe('batches', () => {
 })
 
 describe('ray accounting', () => {
-  it('a lens design traces its planar companion beside each ray; a planar design is its own companion', () => {
-    expect(tracedRaysPerRay(base)).toBe(2)
+  it('an extended source gets its planar companion by quadrature (no rays); a pixel source traces it beside each ray; a planar design is its own companion', () => {
+    expect(tracedRaysPerRay(base)).toBe(1)
+    expect(tracedRaysPerRay(pixel)).toBe(2)
     expect(tracedRaysPerRay(planar)).toBe(1)
   })
 })
 
 describe('planRun', () => {
-  it('a single run uses the seed itself and the design\'s ray count; the team is charged device and companion', () => {
+  it('a single run uses the seed itself and the design\'s ray count; the team is charged the rays traced (device, and a traced companion)', () => {
     const p = planRun({ kind: 'single', base, designName: 'Film A', batchRays: 40_000, at })
     expect(p.seed).toBe(7)
     expect(p.cells).toHaveLength(1)
@@ -54,8 +56,11 @@ describe('planRun', () => {
     expect(p.raysPerCell).toBe(100_000)
     expect(p.cells[0]!.batches.map((b) => b.rayCount)).toEqual([40_000, 40_000, 20_000])
     expect(p.raysPlanned).toBe(100_000)
-    expect(p.tracedRaysPlanned).toBe(200_000)
-    expect(p.tracedRaysReserved).toBe(200_000)
+    expect(p.tracedRaysPlanned).toBe(100_000)
+    expect(p.tracedRaysReserved).toBe(100_000)
+    const px = planRun({ kind: 'single', base: pixel, designName: 'Pixel', batchRays: 40_000, at })
+    expect(px.raysPlanned).toBe(100_000)
+    expect(px.tracedRaysReserved).toBe(200_000)
     expect(p.name).toBe('Film A, 2 Dec 15:40 UTC')
     const flat = planRun({ kind: 'single', base: planar, designName: 'Flat', batchRays: 40_000, at, seed: 3, precision: { rays: 5000 } })
     expect(flat.cells[0]!.seed).toBe(3)
@@ -73,7 +78,7 @@ describe('planRun', () => {
     expect(p.infeasibleCount).toBe(2)
     expect(p.feasible.map((c) => c.index)).toEqual([0, 2])
     expect(p.raysPlanned).toBe(240_000)
-    expect(p.tracedRaysReserved).toBe(2 * 120_000 * 2)
+    expect(p.tracedRaysReserved).toBe(2 * 120_000)
     expect(p.figure).toBe('enhancement')
     expect(p.name).toBe('Sag × Fill factor, 2 Dec 15:40 UTC')
   })
@@ -83,8 +88,8 @@ describe('planRun', () => {
     expect(p.firstRound).toBe(50_000)
     expect(p.raysPerCell).toBeNull()
     expect(p.rayCap).toBe(400_000)
-    expect(p.tracedRaysPlanned).toBe(2 * 50_000 * 2)
-    expect(p.tracedRaysReserved).toBe(2 * 400_000 * 2)
+    expect(p.tracedRaysPlanned).toBe(2 * 50_000)
+    expect(p.tracedRaysReserved).toBe(2 * 400_000)
     const small = planRun({ kind: 'single', base, designName: 'A', precision: { targetStdErr: 0.001, rayCap: 20_000 }, batchRays: 50_000, at })
     expect(small.firstRound).toBe(20_000)
   })
