@@ -23,7 +23,7 @@ function bruteForce(x: number, y: number, z: number, dx: number, dy: number, dz:
 }
 
 describe('air search finds the first cap or the land, like brute force (seed 21, 4000 rays)', () => {
-  it('rays from a cap surface and from the land', () => {
+  it('rays from a cap surface and from the land', { timeout: 30_000 }, () => {
     const out = new Float64Array(3)
     const st = createRngState()
     const tally = [0, 0, 0, 0]
