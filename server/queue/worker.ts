@@ -48,7 +48,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
   const threads = opts.threads ?? defaultThreads()
   const settings = jobSettings()
   const name = `${hostname()}:${process.pid}`
-  const pool = await createTracePool(threads)
+  const pool = createTracePool(threads)
   const boss = await useBoss()
   const active = new Map<string, Set<AbortController>>()
   const cancelListener = listen([CHANNEL_CANCEL], (_ch, runId) => {

@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest'
 import { scenarioSchema } from '../../shared/types/scenario'
 import { cellSeed } from '../../shared/types/sweep'
-import { bestCellIndex, figureUnavailable, FIGURES, FIGURE_KEYS, figureOf, type CellSummary } from '../../shared/types/figures'
+import { traceScenario } from '../../shared/optics'
+import { bestCellIndex, cellSummaryOf, cellSummarySchema, figureUnavailable, FIGURES, FIGURE_KEYS, figureOf, type CellSummary } from '../../shared/types/figures'
 import { defaultRunName, runPatchSchema } from '../../shared/types/run'
 import { MIN_ROUND_RAYS, nextRound, planBatches, planRun, RunRequestError, tracedRaysPerRay } from '../../server/runs/plan'
 
@@ -198,6 +199,20 @@ describe('figures', () => {
     expect(bestCellIndex(cells, 'enhancement')).toBe(0)
     expect(bestCellIndex(cells, 'maxDeltaUvTo60')).toBe(1)
     expect(bestCellIndex(cells.slice(2), 'enhancement')).toBeNull()
+  })
+
+  it('a stored summary of a traced result parses as CellSummary and reads back the result\'s own figures — seed 11', () => {
+    const disc = { ...base, emitter: { ...base.emitter, source: { shape: 'disc' as const, radiusUm: 40 } } }
+    for (const sc of [base, disc]) {
+      const r = traceScenario(sc, { rays: 4000, seed: 11 })
+      expect(r.pixel === null).toBe(sc === base)
+      const s = cellSummaryOf(r)
+      expect(cellSummarySchema.parse(s)).toEqual(s)
+      expect(figureOf(s, 'enhancement')).toEqual({ value: r.enhancement, stdErr: r.enhancementStdErr })
+      expect(figureOf(s, 'extraction')).toEqual({ value: r.extraction, stdErr: r.extractionStdErr })
+      expect(figureOf(s, 'onAxisLuminance')).toEqual({ value: r.luminance.onAxisRelative, stdErr: r.luminance.onAxisRelativeStdErr })
+      expect(figureOf(s, 'pixelOnAxisGain')).toEqual(r.pixel ? { value: r.pixel.onAxisEnhancement, stdErr: r.pixel.onAxisEnhancementStdErr } : null)
+    }
   })
 
   it('says what a design lacks for a figure', () => {
