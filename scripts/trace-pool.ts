@@ -74,17 +74,19 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   const scenes = prepareRun(sc, { companion: opts.companion })
   const total: RunTallies = { device: createTally(), planar: scenes.planar ? createTally() : null }
   let done = 0
+  let flat: ReturnType<typeof companionFor> = null
   try {
-    await Promise.all(
-      chunks.map(async ([firstRay, rayCount]) => {
-        const buf = (await pool.run({ scenes, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
-        mergeRunTallies(total, runTalliesFromBuffer(buf))
-        done += rayCount
-        opts.onProgress?.(done, opts.rays)
-      }),
-    )
+    const tasks = chunks.map(async ([firstRay, rayCount]) => {
+      const buf = (await pool.run({ scenes, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
+      mergeRunTallies(total, runTalliesFromBuffer(buf))
+      done += rayCount
+      opts.onProgress?.(done, opts.rays)
+    })
+    // the exact flat companion on this (otherwise idle) thread while the workers trace
+    flat = companionFor(sc, total)
+    await Promise.all(tasks)
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel, companionFor(sc, total)), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, flat), tallies: total }
 }

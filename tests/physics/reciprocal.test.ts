@@ -11,7 +11,7 @@ const sc = (over: Partial<ScenarioInput>) => scenarioSchema.parse({ ...base, ...
 const lamb = (a: number, b: number) => Math.sin(b * DEG) ** 2 - Math.sin(a * DEG) ** 2
 
 describe('reciprocal luminance: radiance theorem', () => {
-  it('Lambertian, R 0, Fresnel none: L/L_Lambert = 1/n_e² at θ = 0, 15, 30, 45, 60, 75° (Yablonovitch, JOSA 72, 899 (1982): L/n² invariant) — seed 2201', () => {
+  it('Lambertian, R 0, Fresnel none: L/L_Lambert = 1/n_e² at θ = 0, 15, 30, 45, 60, 75° (Yablonovitch, JOSA 72, 899 (1982), from memory: L/n² invariant) — seed 2201', () => {
     for (const [nE, nS] of [[1.7, 1.7], [1.8, 1.5]] as const) {
       const scene = packScene(sc({ emitter: { index: nE, angularProfile: 'lambertian' }, reflector: { reflectance: 0 }, substrate: { index: nS, thicknessUm: 100 }, trace: { fresnel: 'none' } }))
       for (const th of [0, 15, 30, 45, 60, 75]) {
