@@ -1,6 +1,7 @@
 // npm run bench: rays/s on the named reference scenarios, in-process on one thread and on the piscina pool at 1
-// thread and at all threads. "rays/s" counts device rays; each includes tracing its planar companion ray (the
-// enhancement's reference), exactly as a real run does. Figures depend on machine load: re-run when quiet.
+// thread and at all threads. "rays/s" counts device rays; since 2026-12-02 the planar companion comes from
+// quadrature (no companion ray is traced with them; before, each included one), exactly as a real run does.
+// Figures depend on machine load: re-run when quiet.
 // Usage: npm run bench -- [--rays N] [name ...]
 import { availableParallelism, cpus, loadavg } from 'node:os'
 import { parseArgs } from 'node:util'

@@ -1,5 +1,6 @@
 // npm run bench (second part): a sweep end to end through the queue. A 10 × 10 grid of lens radius of curvature
-// against fill factor (hexagonal, pitch 10 µm, 200 000 rays per cell, each with its planar companion) is created
+// against fill factor (hexagonal, pitch 10 µm, 200 000 rays per cell; the flat companion by quadrature since
+// 2026-12-02, before that traced with as many rays again) is created
 // with the same code the route uses, queued in pg-boss on a throwaway PostgreSQL, and traced by a batch worker
 // with 1 thread, then again with 2. Prints the wall time from "created" to "done" and the ratio of the two.
 // Usage: npm run bench:sweep -- [--rays-per-cell N] [--steps N]
@@ -77,14 +78,14 @@ async function waitDone(id: string) {
 }
 
 const cells = steps * steps
-console.log(`sweep through the queue: ${steps} × ${steps} (radius of curvature × fill factor), ${raysPerCell.toLocaleString('en-US')} rays per cell + planar companion, batches of ${Number(process.env.LENSFIELD_BATCH_RAYS).toLocaleString('en-US')} rays`)
+console.log(`sweep through the queue: ${steps} × ${steps} (radius of curvature × fill factor), ${raysPerCell.toLocaleString('en-US')} rays per cell (flat companion by quadrature), batches of ${Number(process.env.LENSFIELD_BATCH_RAYS).toLocaleString('en-US')} rays`)
 const results: Record<number, number> = {}
 for (const threads of [...new Set([1, Math.min(2, availableParallelism())])]) {
   const { seconds, row } = await sweepOnce(threads)
   results[threads] = seconds
   const rays = Number(row.rays_done)
   console.log(`  ${threads} worker thread(s): ${seconds.toFixed(1).padStart(6)} s for ${cells} cells (${row.status}), ` +
-    `${Math.round(rays / seconds).toLocaleString('en-US')} traced rays/s incl. companions, best cell ${row.best_cell_index}`)
+    `${Math.round(rays / seconds).toLocaleString('en-US')} traced rays/s (companion rays too when a cell traces one), best cell ${row.best_cell_index}`)
 }
 if (results[2] && results[1]) console.log(`  2 threads vs 1: ×${(results[1] / results[2]).toFixed(2)} faster`)
 await stopBoss()

@@ -7,7 +7,7 @@ import { fileURLToPath, pathToFileURL } from 'node:url'
 import type { Piscina } from 'piscina'
 import type { Scenario } from '../shared/types/scenario'
 import type { TraceResult } from '../shared/types/result'
-import { companionFor, type CompanionMethod, createTally, mergeRunTallies, planChunks, runTalliesFromBuffer, summarize, tracesCompanion, type RunTallies } from '../shared/optics'
+import { companionFor, type CompanionMethod, createTally, mergeRunTallies, planChunks, prepareRun, runTalliesFromBuffer, summarize, type RunTallies } from '../shared/optics'
 import { createTracePool, TRACE_WORKER_ENV } from '../server/queue/pool'
 
 /** The checkout (the folder with package.json above this file: scripts/ from source, dist/cli/ when bundled). */
@@ -60,19 +60,24 @@ export interface PoolRunOptions {
 export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{ result: TraceResult; tallies: RunTallies }> {
   const pool = opts.pool ?? (await createTracePoolReady(opts.threads))
   const chunks = planChunks(opts.rays, opts.chunkRays)
-  const total: RunTallies = { device: createTally(), planar: tracesCompanion(sc, opts.companion) ? createTally() : null }
+  // packed here once and sent as scenes: the workers need not validate the scenario again (a cold zod parse costs
+  // more than the whole trace of a short run)
+  const scenes = prepareRun(sc, { companion: opts.companion })
+  const total: RunTallies = { device: createTally(), planar: scenes.planar ? createTally() : null }
   let done = 0
+  let flat: ReturnType<typeof companionFor> = null
   try {
-    await Promise.all(
-      chunks.map(async ([firstRay, rayCount]) => {
-        const buf = (await pool.run({ scenario: sc, companion: opts.companion, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
-        mergeRunTallies(total, runTalliesFromBuffer(buf))
-        done += rayCount
-        opts.onProgress?.(done, opts.rays)
-      }),
-    )
+    const tasks = chunks.map(async ([firstRay, rayCount]) => {
+      const buf = (await pool.run({ scenes, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer
+      mergeRunTallies(total, runTalliesFromBuffer(buf))
+      done += rayCount
+      opts.onProgress?.(done, opts.rays)
+    })
+    // the exact flat companion on this (otherwise idle) thread while the workers trace
+    flat = companionFor(sc, total)
+    await Promise.all(tasks)
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel, companionFor(sc, total)), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, flat), tallies: total }
 }

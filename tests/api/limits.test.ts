@@ -83,7 +83,7 @@ describe('work per ray and per batch', () => {
     expect(Number(cell.rays_done)).toBe(60_000)
     // The same ray ranges and budgets traced here: bitwise the same counts.
     const scenes = prepareRun(scenarioSchema.parse(cell.scenario))
-    const total: RunTallies = { device: createTally(), planar: createTally() }
+    const total: RunTallies = { device: createTally(), planar: scenes.planar ? createTally() : null }
     for (const [first, count] of [[0, 50_000], [50_000, 10_000]] as const) {
       for (let f = first; f < first + count; f += CHUNK_RAYS) {
         const n = Math.min(CHUNK_RAYS, first + count - f)

@@ -41,7 +41,7 @@ describe('flat quadrature: closed forms', () => {
     }
   })
 
-  it('Lambertian, R 0, Fresnel none: extraction 1/n_e² and L/L_Lambert = 1/n_e² in every 1° bin (radiance n² law; Yablonovitch, JOSA 72, 899 (1982))', () => {
+  it('Lambertian, R 0, Fresnel none: extraction 1/n_e² and L/L_Lambert = 1/n_e² in every 1° bin (radiance n² law; Yablonovitch, JOSA 72, 899 (1982); from memory)', () => {
     for (const [nE, nS] of [[1.7, 1.7], [1.8, 1.5]] as const) {
       const c = flatCompanion(flat({ emitter: { index: nE, angularProfile: 'lambertian' }, reflector: { reflectance: 0 }, substrate: { index: nS, thicknessUm: 100 }, trace: { fresnel: 'none' } }))!
       expect(Math.abs(c.extraction - 1 / (nE * nE))).toBeLessThan(1e-12)
@@ -49,7 +49,7 @@ describe('flat quadrature: closed forms', () => {
     }
   })
 
-  it('Lambertian, ideal diffuse reflector R, no absorption, Fresnel none: η = (1/n²)/(1 − (1 − 1/n²)R) (escape 1/n² per encounter of randomised light: Yablonovitch, JOSA 72, 899 (1982))', () => {
+  it('Lambertian, ideal diffuse reflector R, no absorption, Fresnel none: η = (1/n²)/(1 − (1 − 1/n²)R) (escape 1/n² per encounter of randomised light: Yablonovitch, JOSA 72, 899 (1982); from memory)', () => {
     for (const R of [0.5, 0.9, 0.99]) {
       const n = 1.6
       const o = flatOutcomes(packScene(flat({ emitter: { index: n, angularProfile: 'lambertian' }, reflector: { reflectance: R, diffuseFraction: 1 }, substrate: { index: n, thicknessUm: 100 }, trace: { fresnel: 'none' } }), { planar: true }))

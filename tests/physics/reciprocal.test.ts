@@ -11,7 +11,7 @@ const sc = (over: Partial<ScenarioInput>) => scenarioSchema.parse({ ...base, ...
 const lamb = (a: number, b: number) => Math.sin(b * DEG) ** 2 - Math.sin(a * DEG) ** 2
 
 describe('reciprocal luminance: radiance theorem', () => {
-  it('Lambertian, R 0, Fresnel none: L/L_Lambert = 1/n_e² at θ = 0, 15, 30, 45, 60, 75° (Yablonovitch, JOSA 72, 899 (1982): L/n² invariant) — seed 2201', () => {
+  it('Lambertian, R 0, Fresnel none: L/L_Lambert = 1/n_e² at θ = 0, 15, 30, 45, 60, 75° (Yablonovitch, JOSA 72, 899 (1982), from memory: L/n² invariant) — seed 2201', () => {
     for (const [nE, nS] of [[1.7, 1.7], [1.8, 1.5]] as const) {
       const scene = packScene(sc({ emitter: { index: nE, angularProfile: 'lambertian' }, reflector: { reflectance: 0 }, substrate: { index: nS, thicknessUm: 100 }, trace: { fresnel: 'none' } }))
       for (const th of [0, 15, 30, 45, 60, 75]) {
@@ -29,6 +29,11 @@ describe('reciprocal vs the exact flat device (quadrature), 4σ', () => {
     ['polarised Fresnel', 2212, { trace: { fresnel: 'polarized' } }],
     ['diffuse reflector 50 %, absorbing substrate 2 /mm', 2213, { reflector: { reflectance: 0.9, diffuseFraction: 0.5 }, substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 2 } }],
     ['table profile with down-going emission, 1.5 | 1.7', 2214, { emitter: { index: 1.5, angularProfile: { table: [[0, 1], [60, 0.5], [120, 0.8], [180, 0.2]] } }, substrate: { index: 1.7, thicknessUm: 100 } }],
+    ['spectral: Gaussian 530/60 nm, Cauchy emitter, N-BK7 substrate (Sellmeier, maker’s datasheet), polarised', 2215, {
+      emitter: { index: { cauchy: { A: 1.68, B: 0.012 } }, spectrum: { peakNm: 530, fwhmNm: 60 } },
+      substrate: { index: { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945], C: [0.00600069867, 0.0200179144, 103.560653] } }, thicknessUm: 100, absorptionPerMm: 0.5 },
+      trace: { fresnel: 'polarized' },
+    }],
   ] as const)('%s — seed %s', (_label, seed, over) => {
     const s = sc(over as Partial<ScenarioInput>)
     const q = flatCompanion(s)!
