@@ -8,6 +8,15 @@ export function useSessionUser() {
   return useState<SessionUser | null>('session-user', () => null)
 }
 
+/**
+ * Whether this page load has asked the server who is signed in. Set during server rendering and carried to the
+ * browser in the payload, so the browser does not ask again: a signed-out page (sign-in, sign-up, reset-password)
+ * then sends no request that can only answer 401, and the console stays clean.
+ */
+export function useSessionKnown() {
+  return useState<boolean>('session-known', () => false)
+}
+
 /** Loads /api/auth/me into the shared state; null when signed out. */
 export async function refreshSessionUser(): Promise<SessionUser | null> {
   const state = useSessionUser()
@@ -16,6 +25,7 @@ export async function refreshSessionUser(): Promise<SessionUser | null> {
   } catch {
     state.value = null
   }
+  useSessionKnown().value = true
   return state.value
 }
 

@@ -50,3 +50,59 @@ export function isoTime(at: string | Date | null | undefined): string {
   const d = at instanceof Date ? at : new Date(at)
   return Number.isNaN(d.getTime()) ? '' : d.toISOString()
 }
+
+// Geometry as shown (never as stored): lengths to 0.01 µm, the step a lens-film line can make and a stylus
+// profiler can check (common practice for replicated micro-optics, from memory); unitless ratios (fill factor,
+// aspect ratio, conic constant) to 3 significant digits; angles to 0.1°. Trailing zeros are dropped ("10 µm",
+// "9.5 µm"). Stored and exported values keep full precision; only display rounds.
+
+/** The displayed length step, µm. */
+export const LENGTH_STEP_UM = 0.01
+
+function trimmed(value: number, decimals: number): string {
+  const s = String(Number(value.toFixed(decimals)))
+  return s === '-0' ? '0' : s
+}
+
+/** A length to 0.01 µm: 4.392779 → "4.39 µm" (withUnit false → "4.39"). */
+export function lengthUm(value: number | null | undefined, withUnit = true): string {
+  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
+  const s = trimmed(value, 2)
+  return withUnit ? `${s} µm` : s
+}
+
+/** A unitless ratio to 3 significant digits: 0.906899 → "0.907", 12.345 → "12.3", 0.5 → "0.5". */
+export function ratio(value: number | null | undefined): string {
+  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
+  if (value === 0) return '0'
+  const s = String(Number(value.toPrecision(3)))
+  return s === '-0' ? '0' : s
+}
+
+/** An angle to 0.1°: 53.1301 → "53.1°". */
+export function angleDeg(value: number | null | undefined, withUnit = true): string {
+  if (value === null || value === undefined || !Number.isFinite(value)) return '—'
+  const s = trimmed(value, 1)
+  return withUnit ? `${s}°` : s
+}
+
+/**
+ * A geometry value by its unit, as the lines above round it: 'µm' → 0.01 µm, '°' → 0.1°, '' (a ratio) → 3
+ * significant digits; any other unit falls back to num(). withUnit false leaves the unit to a column header.
+ */
+export function geometry(value: number | null | undefined, unit: string, withUnit = true): string {
+  if (unit === 'µm') return lengthUm(value, withUnit)
+  if (unit === '°') return angleDeg(value, withUnit)
+  if (unit === '' || unit === '1') return ratio(value)
+  return withUnit ? num(value, unit) : num(value)
+}
+
+/**
+ * A sweep coordinate of the axis `parameter` (unit from AXIS_PARAMETERS): lengths and the fill factor are geometry
+ * and round as above; other unitless axes (indices, reflectance) keep num()'s 4 significant digits, since an index
+ * such as 1.517 is a material's value, not a line tolerance.
+ */
+export function axisValue(parameter: string, value: number | null | undefined, unit: string, withUnit = true): string {
+  if (unit === 'µm' || parameter === 'lensArray.fillFactor' || parameter === 'lensArray.conicConstant') return geometry(value, unit, withUnit)
+  return withUnit ? num(value, unit) : num(value)
+}

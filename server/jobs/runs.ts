@@ -16,6 +16,7 @@ import { usePool } from '../utils/db'
 import { batchJobOptions, useBoss } from './boss'
 import { CHANNEL_CANCEL, CHANNEL_PROGRESS, jobSettings, QUEUE_BATCH } from './config'
 import { judgeCost } from './cost'
+import { rayLimitMessage, tracedPerRay } from '../../shared/types/ray-limits'
 
 export type TxDb = NodePgDatabase<typeof schema>
 
@@ -154,9 +155,10 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
   const raysPerCell = targetStdErr === null ? (p.rays ?? base.trace.rays) : null
   // First round: the whole count, or (with a target) one batch to measure the spread from.
   const firstRound = raysPerCell ?? Math.min(settings.batchRays, rayCap!)
-  const companion = (c: SweepCell) => (c.feasible && c.scenario.lensArray ? 2 : 1)
-  const cost = feasible.reduce((n, c) => n + (raysPerCell ?? rayCap!) * companion(c), 0)
-  const planned = feasible.reduce((n, c) => n + firstRound * companion(c), 0)
+  // traced rays per requested ray, summed over the cells (a lens cell also traces its planar companion)
+  const tracedPerCellRay = feasible.reduce((n, c) => n + tracedPerRay(c.scenario), 0)
+  const cost = (raysPerCell ?? rayCap!) * tracedPerCellRay
+  const planned = firstRound * tracedPerCellRay
   // Pilot trace before anything is stored: refuse what no batch could finish, keep warnings for what is costly.
   const verdict = judgeCost(feasible.map((c) => ({ index: c.index, scenario: c.scenario })), seed, settings.batchRays, settings.batchEvents)
   if (verdict.refuse) throw new RunRequestError(verdict.refuse, 422)
@@ -166,9 +168,7 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     await client.query(`SELECT pg_advisory_xact_lock(hashtext('lensfield-team-rays'), hashtext($1))`, [input.teamId])
     const outstanding = await teamOutstandingRays(tx, input.teamId)
     if (outstanding + cost > settings.teamRayLimit) {
-      throw new RunRequestError(
-        `This would queue ${fmtRays(cost)} rays; your team already has ${fmtRays(outstanding)} waiting and the limit is ` +
-        `${fmtRays(settings.teamRayLimit)}. Use fewer rays or cells, or wait for running work to finish.`, 429)
+      throw new RunRequestError(rayLimitMessage(raysPerCell ?? rayCap!, feasible.length, tracedPerCellRay, outstanding, settings.teamRayLimit), 429)
     }
     const name = input.name ?? (input.kind === 'sweep'
       ? `${input.design.name}: ${axes.map((a) => AXIS_PARAMETERS[a.parameter].label.toLowerCase()).join(' × ')}`
@@ -225,10 +225,6 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     await client.query('SELECT pg_notify($1, $2)', [CHANNEL_PROGRESS, run!.id])
     return run!
   })
-}
-
-function fmtRays(n: number): string {
-  return n >= 1e9 ? `${(n / 1e9).toPrecision(3)} G` : n >= 1e6 ? `${(n / 1e6).toPrecision(3)} M` : String(n)
 }
 
 /** Cancels a queued or running run: open cells and batches are marked cancelled and their jobs withdrawn. */

@@ -5,6 +5,7 @@
 // instead of failing the sweep. Lengths in µm, as everywhere in the scenario.
 import { z } from 'zod'
 import { stripBidiControls } from './limits'
+import { MAX_RAYS_PER_CELL, MIN_RAYS_PER_CELL } from './ray-limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
 
@@ -74,9 +75,9 @@ export type Figure = z.infer<typeof figureSchema>
  */
 export const precisionSchema = z
   .object({
-    rays: z.number().int().min(1000).max(1e9).optional(),
+    rays: z.number().int().min(MIN_RAYS_PER_CELL).max(MAX_RAYS_PER_CELL).optional(),
     targetStdErr: z.number().positive().max(0.1).optional(),
-    rayCap: z.number().int().min(1000).max(1e9).optional(),
+    rayCap: z.number().int().min(MIN_RAYS_PER_CELL).max(MAX_RAYS_PER_CELL).optional(),
   })
   .superRefine((p, ctx) => {
     if (p.rays !== undefined && p.targetStdErr !== undefined) {
