@@ -53,36 +53,37 @@ export function isoTime(at: string | Date | null | undefined): string {
 
 // Geometry as shown (never as stored): lengths to 0.01 µm, the step a lens-film line can make and a stylus
 // profiler can check (common practice for replicated micro-optics, from memory); unitless ratios (fill factor,
-// aspect ratio, conic constant) to 3 significant digits; angles to 0.1°. Trailing zeros are dropped ("10 µm",
-// "9.5 µm"). Stored and exported values keep full precision; only display rounds.
+// aspect ratio, conic constant) to 3 significant digits; angles to 0.1°. The digits are kept ("10.00 µm",
+// "0.500"), so every value says how fine it is and columns line up. Stored and exported values keep full precision.
 
 /** The displayed length step, µm. */
 export const LENGTH_STEP_UM = 0.01
 
-function trimmed(value: number, decimals: number): string {
-  const s = String(Number(value.toFixed(decimals)))
-  return s === '-0' ? '0' : s
+function fixed(value: number, decimals: number): string {
+  const s = value.toFixed(decimals)
+  return /^-0\.?0*$/.test(s) ? s.slice(1) : s
 }
 
 /** A length to 0.01 µm: 4.392779 → "4.39 µm" (withUnit false → "4.39"). */
 export function lengthUm(value: number | null | undefined, withUnit = true): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '—'
-  const s = trimmed(value, 2)
+  const s = fixed(value, 2)
   return withUnit ? `${s} µm` : s
 }
 
-/** A unitless ratio to 3 significant digits: 0.906899 → "0.907", 12.345 → "12.3", 0.5 → "0.5". */
+/** A unitless ratio to 3 significant digits: 0.906899 → "0.907", 12.345 → "12.3", 0.5 → "0.500". */
 export function ratio(value: number | null | undefined): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '—'
   if (value === 0) return '0'
-  const s = String(Number(value.toPrecision(3)))
-  return s === '-0' ? '0' : s
+  if (Math.abs(value) >= 1000) return String(Math.round(value))
+  const s = value.toPrecision(3)
+  return /^-0\.?0*$/.test(s) ? s.slice(1) : s
 }
 
 /** An angle to 0.1°: 53.1301 → "53.1°". */
 export function angleDeg(value: number | null | undefined, withUnit = true): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return '—'
-  const s = trimmed(value, 1)
+  const s = fixed(value, 1)
   return withUnit ? `${s}°` : s
 }
 

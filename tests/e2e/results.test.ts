@@ -70,7 +70,7 @@ describe('demo results', () => {
     const row = page.locator('[data-testid=sweep-table] tbody tr').filter({ has: page.locator('td:first-child', { hasText: new RegExp(`^${best.cellIndex}$`) }) })
     const shownSag = Number(await row.locator('td').nth(sagCol).textContent())
     const [radius, fill] = best.coordinates as [number, number]
-    expect(shownSag).toBeCloseTo(sagUm(radius, hexDiameterUm(fill, pitch)), 3)
+    expect(shownSag).toBeCloseTo(sagUm(radius, hexDiameterUm(fill, pitch)), 2) // shown to 0.01 µm
     await shot(page, '21-demo-sweep')
   })
 

@@ -1,17 +1,17 @@
-// Displayed geometry (app/utils/format.ts): lengths to 0.01 µm, ratios to 3 significant digits, angles to 0.1°,
-// while the value itself is never changed. Reference values: spherical cap Rc = (r² + h²)/(2h) and contact angle
+// Displayed geometry (app/utils/format.ts): lengths to 0.01 µm, ratios to 3 significant digits, angles to 0.1°
+// (digits kept), while the value itself is never changed. Reference values: spherical cap Rc = (r² + h²)/(2h) and contact angle
 // asin(r/Rc) (standard geometry); hexagonal close packing fill factor π/(2√3) = 0.9069 (standard geometry).
 import { describe, expect, it } from 'vitest'
 import { angleDeg, axisValue, geometry, lengthUm, ratio } from '../../app/utils/format'
 
 describe('geometry as shown', () => {
-  it('lengths to 0.01 µm, trailing zeros dropped', () => {
+  it('lengths to 0.01 µm, with their two decimals', () => {
     expect(lengthUm(4.392779454942249)).toBe('4.39 µm') // the sag bound of the issue, D/2 of an 8.7856 µm cap
-    expect(lengthUm(4.396)).toBe('4.4 µm') // 4.40 with the trailing zero dropped
-    expect(lengthUm(10)).toBe('10 µm')
-    expect(lengthUm(9.5)).toBe('9.5 µm')
-    expect(lengthUm(0.004)).toBe('0 µm')
-    expect(lengthUm(-0.001)).toBe('0 µm')
+    expect(lengthUm(4.396)).toBe('4.40 µm')
+    expect(lengthUm(10)).toBe('10.00 µm')
+    expect(lengthUm(9.5)).toBe('9.50 µm')
+    expect(lengthUm(0.004)).toBe('0.00 µm')
+    expect(lengthUm(-0.001)).toBe('0.00 µm') // no "-0.00"
     expect(lengthUm(123.456, false)).toBe('123.46')
   })
 
@@ -25,8 +25,9 @@ describe('geometry as shown', () => {
 
   it('ratios to 3 significant digits', () => {
     expect(ratio(Math.PI / (2 * Math.sqrt(3)))).toBe('0.907')
-    expect(ratio(0.5)).toBe('0.5')
-    expect(ratio(0.30000000000000004)).toBe('0.3')
+    expect(ratio(0.5)).toBe('0.500')
+    expect(ratio(0.30000000000000004)).toBe('0.300')
+    expect(ratio(-0.0001)).toBe('-0.000100')
     expect(ratio(12.345)).toBe('12.3')
     expect(ratio(0)).toBe('0')
   })
@@ -43,7 +44,7 @@ describe('geometry as shown', () => {
 
   it('sweep coordinates: geometry axes round as geometry, an index keeps 4 significant digits', () => {
     expect(axisValue('lensArray.radiusOfCurvatureUm', 6.960000000000001, 'µm')).toBe('6.96 µm')
-    expect(axisValue('lensArray.fillFactor', 0.7500000001, '', false)).toBe('0.75')
+    expect(axisValue('lensArray.fillFactor', 0.7500000001, '', false)).toBe('0.750')
     expect(axisValue('substrate.index', 1.5168, '')).toBe('1.517')
   })
 })
