@@ -19,13 +19,15 @@ export function useSessionKnown() {
 
 /** Loads /api/auth/me into the shared state; null when signed out. */
 export async function refreshSessionUser(): Promise<SessionUser | null> {
+  // both states are taken before the await: after it, the Nuxt instance is no longer current on the server
   const state = useSessionUser()
+  const known = useSessionKnown()
   try {
     state.value = await useRequestFetch()<SessionUser>('/api/auth/me')
   } catch {
     state.value = null
   }
-  useSessionKnown().value = true
+  known.value = true
   return state.value
 }
 
