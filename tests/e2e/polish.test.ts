@@ -111,7 +111,7 @@ describe('signed in as a designer', () => {
     if (await page.getByRole('button', { name: 'Discard changes' }).isEnabled()) await page.getByRole('button', { name: 'Discard changes' }).click()
   })
 
-  it('the editor fits a 390 × 844 phone: no horizontal scroll, header and actions visible', async () => {
+  it('the editor (and a run and a sweep page) fit a 390 × 844 phone: no horizontal scroll, header and actions visible', async () => {
     await page.setViewportSize({ width: 390, height: 844 })
     await page.goto(designUrl)
     await hydrated(page)
@@ -124,6 +124,16 @@ describe('signed in as a designer', () => {
       expect(b.x + b.width).toBeLessThanOrEqual(390)
     }
     await shot(page, 'polish-04-editor-390px')
+    // the pages a result opens on fit too: the demo run and sweep (charts and tables scroll inside their panels)
+    const list = await page.evaluate(async (u) => (await fetch(u)).json(), `/api/runs?projectId=${projectId}`) as { runs: Array<{ id: string; kind: string; name: string }> }
+    for (const kind of ['single', 'sweep']) {
+      const r = list.runs.find((x) => x.kind === kind)!
+      await page.goto(`${baseUrl}/${kind === 'sweep' ? 'sweeps' : 'runs'}/${r.id}`)
+      await hydrated(page)
+      await page.locator('figure canvas').first().waitFor()
+      expect(await page.evaluate(() => document.scrollingElement!.scrollWidth), `${kind} page at 390 px`).toBeLessThanOrEqual(390)
+      await shot(page, `polish-04-${kind}-390px`)
+    }
     await page.setViewportSize({ width: 1280, height: 900 })
   })
 
