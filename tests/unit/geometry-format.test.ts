@@ -1,8 +1,10 @@
-// Displayed geometry (app/utils/format.ts): lengths to 0.01 µm, ratios to 3 significant digits, angles to 0.1°
-// (digits kept), while the value itself is never changed. Reference values: spherical cap Rc = (r² + h²)/(2h) and contact angle
-// asin(r/Rc) (standard geometry); hexagonal close packing fill factor π/(2√3) = 0.9069 (standard geometry).
+// Displayed geometry (shared/utils/geometry-format.ts): lengths to 0.01 µm, ratios to 3 significant digits, angles
+// to 0.1° (digits kept), while the value itself is never changed. Reference values: spherical cap Rc = (r² + h²)/(2h)
+// and contact angle asin(r/Rc) (standard geometry); hexagonal close packing fill factor π/(2√3) = 0.9069 (standard
+// geometry).
 import { describe, expect, it } from 'vitest'
-import { angleDeg, axisValue, geometry, lengthUm, ratio } from '../../app/utils/format'
+import { angleDeg, axisValue, geometry, lengthUm, ratio } from '../../shared/utils/geometry-format'
+import { limitBreaches } from '../../shared/types/project'
 
 describe('geometry as shown', () => {
   it('lengths to 0.01 µm, with their two decimals', () => {
@@ -46,5 +48,14 @@ describe('geometry as shown', () => {
     expect(axisValue('lensArray.radiusOfCurvatureUm', 6.960000000000001, 'µm')).toBe('6.96 µm')
     expect(axisValue('lensArray.fillFactor', 0.7500000001, '', false)).toBe('0.750')
     expect(axisValue('substrate.index', 1.5168, '')).toBe('1.517')
+  })
+})
+
+describe('limit breaches say the numbers as shown', () => {
+  it('to 0.01 µm and 3 digits, and finer only when the breach is finer than that', () => {
+    const lens = { sagUm: 2.5311, diameterUm: 8.79, pitchUm: 10 }
+    expect(limitBreaches(lens, { maxSagUm: 2, maxAspectRatio: 0.25, minGapUm: 1.5 })).toEqual(['sag 2.53 µm > 2.00 µm', 'aspect ratio h/D 0.288 > 0.250', 'gap 1.21 µm < 1.50 µm'])
+    expect(limitBreaches({ sagUm: 2.0004, diameterUm: 10, pitchUm: 10 }, { maxSagUm: 2 })).toEqual(['sag 2.0004 µm > 2 µm'])
+    expect(limitBreaches(lens, { maxSagUm: 3 })).toEqual([])
   })
 })
