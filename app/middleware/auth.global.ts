@@ -6,7 +6,8 @@ const OPEN_PREFIXES = ['/invitations/', '/reset-password', '/dev/mailbox']
 
 export default defineNuxtRouteMiddleware(async (to) => {
   const me = useSessionUser()
-  if (!me.value) await refreshSessionUser()
+  // asked once per page load (on the server for a rendered page): a signed-out reader is not probed again
+  if (!me.value && !useSessionKnown().value) await refreshSessionUser()
   if (OPEN_PREFIXES.some((p) => to.path.startsWith(p))) return
   if (PUBLIC_PAGES.has(to.path)) {
     if (me.value) return navigateTo('/projects')

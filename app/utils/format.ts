@@ -22,3 +22,7 @@ export function isoTime(at: string | Date | null | undefined): string {
   const d = at instanceof Date ? at : new Date(at)
   return Number.isNaN(d.getTime()) ? '' : d.toISOString()
 }
+
+// Geometry as shown (lengths to 0.01 µm, ratios to 3 significant digits, angles to 0.1°): lengthUm, ratio, angleDeg,
+// geometry and axisValue live in shared/utils/geometry-format.ts (auto-imported here too), so the server's messages
+// round the same way.

@@ -4,9 +4,14 @@
 // thinner than it is (drawThicknessUm; lateral travel through it shrinks in proportion, and the point where a ray
 // reaches the top face is moved by at most half a pitch so it meets the right spot of the cap it enters), and a
 // ray leaving the drawn patch is shifted back by a whole lattice vector (the stack is laterally periodic),
-// starting a new polyline. Frame z up, µm; the substrate's top face drawn at z = drawThicknessUm.
+// starting a new polyline. Frame z up, µm; the substrate's top face drawn at z = drawThicknessUm. Drawing maths
+// (carrying an escaped ray on, cutting a segment at the patch edge) with gl-matrix's vec3.
+import { vec3 } from 'gl-matrix'
 import { createTally, HEX_ROW_FACTOR, nearestSite, packScene, T_EXTRACTED, traceRangeModel, type Ray, type RayRecorder } from '#shared/optics'
 import type { Scenario } from '#shared/types/scenario'
+
+/** A double-precision vec3 (gl-matrix's own create() is Float32, too coarse for µm positions on a drawn cap). */
+const f64 = (x: number, y: number, z: number): vec3 => Float64Array.of(x, y, z) as unknown as vec3
 
 /** escaped: left on its first pass; recycled: left after a reflection or a return from air; lost: did not leave. */
 export type RayFate = 'escaped' | 'recycled' | 'lost'
@@ -62,9 +67,10 @@ export function tracePreviewRays(sc: Scenario, opts: { rays?: number; seed?: num
     const pts = r.pts.slice()
     if (fate !== 'lost') {
       // carry the escaping ray on until it is a pitch above the cap tops
-      const last = pts.at(-1)!, [dx, dy, dz] = r.dir
+      const last = pts.at(-1)!, dz = r.dir[2]
       const L = Math.max(3 * pitch, dz > 0 ? (zTop + pitch - last[2]!) / dz : 0)
-      pts.push([last[0]! + dx * L, last[1]! + dy * L, last[2]! + dz * L])
+      const end = vec3.scaleAndAdd(f64(0, 0, 0), f64(last[0]!, last[1]!, last[2]!), f64(...r.dir), L)
+      pts.push([end[0], end[1], end[2]])
     }
     // drawn = true − (sx, sy); the shift grows while the substrate is drawn thin and is put back on a lattice
     // vector where the ray reaches the top face
@@ -86,14 +92,15 @@ export function tracePreviewRays(sc: Scenario, opts: { rays?: number; seed?: num
       if (lens && !last && !inside(qx, qy)) {
         // draw up to the patch edge, then carry on from the end point moved back into the patch
         const ax = paths.at(-1)!.at(-1)!
-        const ex = qx - ax[0]!, ey = qy - ax[1]!, ez = qz - ax[2]!
+        const ex = qx - ax[0]!, ey = qy - ax[1]!
         let te = 1
         if (qx > half) te = Math.min(te, (half - ax[0]!) / ex)
         if (qx < -half) te = Math.min(te, (-half - ax[0]!) / ex)
         if (qy > half) te = Math.min(te, (half - ax[1]!) / ey)
         if (qy < -half) te = Math.min(te, (-half - ax[1]!) / ey)
         te = Math.max(0, te)
-        paths.at(-1)!.push([ax[0]! + ex * te, ax[1]! + ey * te, ax[2]! + ez * te])
+        const edge = vec3.lerp(f64(0, 0, 0), f64(ax[0]!, ax[1]!, ax[2]!), f64(qx, qy, qz), te)
+        paths.at(-1)!.push([edge[0], edge[1], edge[2]])
         nearestSite(hex, pitch, qx, qy, site)
         sx += site[0]!; sy += site[1]!; qx -= site[0]!; qy -= site[1]!
         paths.push([[qx, qy, qz]])

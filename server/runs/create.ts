@@ -1,5 +1,6 @@
 // Creating a run or sweep: plan it (./plan, pure), pilot-trace its cost (./cost), then store run, cells and
 // batches and enqueue the batch jobs in one transaction, so a crash leaves either the whole run or nothing.
+import { rayLimitMessage, tracedPerRay } from '../../shared/types/ray-limits'
 import { randomUUID } from 'node:crypto'
 import { and, count, eq, inArray, sql } from 'drizzle-orm'
 import { ENGINE_VERSION } from '../../shared/optics/version'
@@ -48,10 +49,6 @@ export async function teamQueuedBatches(tx: TxDb, teamId: string): Promise<numbe
   return r?.n ?? 0
 }
 
-function fmtRays(n: number): string {
-  return n >= 1e9 ? `${(n / 1e9).toPrecision(3)} G` : n >= 1e6 ? `${(n / 1e6).toPrecision(3)} M` : String(n)
-}
-
 export async function createRun(input: CreateRunInput): Promise<Run> {
   const settings = jobSettings()
   const base: Scenario = scenarioSchema.parse(input.design.scenario)
@@ -69,9 +66,8 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     const outstanding = await teamOutstandingRays(tx, input.teamId)
     const cost = plan.tracedRaysReserved
     if (outstanding + cost > settings.teamRayLimit) {
-      throw new RunRequestError(
-        `This would queue ${fmtRays(cost)} rays; your team already has ${fmtRays(outstanding)} waiting and the limit is ` +
-        `${fmtRays(settings.teamRayLimit)}. Use fewer rays or cells, or wait for running work to finish.`, 429)
+      const tracedPerCellRay = plan.feasible.reduce((n, c) => n + tracedPerRay(c.scenario), 0)
+      throw new RunRequestError(rayLimitMessage(plan.raysPerCell ?? plan.rayCap!, plan.feasible.length, tracedPerCellRay, outstanding, settings.teamRayLimit), 429)
     }
     const [run] = await tx.insert(runs).values({
       projectId: input.projectId,

@@ -1,7 +1,7 @@
 // A run's plan, as pure functions (no database, no clock, no randomness): the grid of cells, the seed of each,
 // the first round of rays and its batches, the rays held against the team's limit, the default name, and the
 // precision rule that decides, when a cell's last batch lands, whether it is done or gets another round.
-import { tracesCompanion } from '../../shared/optics/run'
+import { tracedPerRay } from '../../shared/types/ray-limits'
 import type { Scenario } from '../../shared/types/scenario'
 import { AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, type SweepAxis, type SweepCell } from '../../shared/types/sweep'
 import { DEFAULT_FIGURE, figureUnavailable, type Figure } from '../../shared/types/figures'
@@ -21,7 +21,7 @@ export class RunRequestError extends Error {
  * ray limit and of runs.rays_planned / rays_done).
  */
 export function tracedRaysPerRay(scenario: Scenario): number {
-  return tracesCompanion(scenario) ? 2 : 1
+  return tracedPerRay(scenario)
 }
 
 export interface PlannedBatch { batchIndex: number; firstRay: number; rayCount: number }

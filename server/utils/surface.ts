@@ -5,6 +5,7 @@ import { conicCurvaturePerUm, conicSagUm, shapeConicConstant } from '../../share
 import { buildProfile, measuredSagUm } from '../../shared/optics/profile'
 import { HEX_ROW_FACTOR, nearestSite } from '../../shared/optics/geometry'
 import { csvCommentRow } from '../../shared/utils/csv-cell'
+import { vec3 } from 'gl-matrix'
 
 export interface LensSpec {
   lattice: 'hexagonal' | 'square'
@@ -68,13 +69,14 @@ export function surfaceStl(lens: LensSpec, lensesX: number, lensesY: number, sam
   buf.writeUInt32LE(g.triangles, 80)
   let off = 84
   const P = (i: number, j: number): [number, number, number] => [x0 + (i * g.widthUm) / g.nx, y0 + (j * g.heightUm) / g.ny, zs[j * (g.nx + 1) + i]!]
-  const tri = (a: number[], b: number[], c: number[]) => {
-    const ux = b[0]! - a[0]!, uy = b[1]! - a[1]!, uz = b[2]! - a[2]!
-    const vx = c[0]! - a[0]!, vy = c[1]! - a[1]!, vz = c[2]! - a[2]!
-    let nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx
-    const l = Math.hypot(nx, ny, nz) || 1
-    nx /= l; ny /= l; nz /= l
-    for (const v of [nx, ny, nz, ...a, ...b, ...c]) { buf.writeFloatLE(v, off); off += 4 }
+  // Facet normal n = (b − a) × (c − a) / |…| with gl-matrix, in double-precision scratch vectors made once (the STL
+  // stores it as float32); a degenerate facet keeps a zero normal, which STL readers recompute.
+  const u = new Float64Array(3) as unknown as vec3, v = new Float64Array(3) as unknown as vec3, n = new Float64Array(3) as unknown as vec3
+  const tri = (a: [number, number, number], b: [number, number, number], c: [number, number, number]) => {
+    vec3.sub(u, b, a)
+    vec3.sub(v, c, a)
+    vec3.normalize(n, vec3.cross(n, u, v))
+    for (const x of [n[0], n[1], n[2], ...a, ...b, ...c]) { buf.writeFloatLE(x, off); off += 4 }
     buf.writeUInt16LE(0, off); off += 2
   }
   for (let j = 0; j < g.ny; j++) {

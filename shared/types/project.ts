@@ -2,6 +2,7 @@
 // A design's scenario is validated separately with scenarioSchema (shared/types/scenario.ts).
 import { z } from 'zod'
 import { stripBidiControls } from './limits'
+import { lengthUm, ratio } from '../utils/geometry-format'
 
 export const idParamSchema = z.object({ id: z.uuid({ error: 'id in the address must be a UUID' }) })
 
@@ -29,13 +30,27 @@ export const projectPatchSchema = z.object({ limits: projectLimitsSchema.nullabl
 export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined, limits: ProjectLimits | null | undefined): string[] {
   if (!lens || !limits) return []
   const out: string[] = []
-  const r = (v: number) => String(Number(v.toPrecision(4)))
-  if (limits.maxSagUm !== undefined && lens.sagUm > limits.maxSagUm) out.push(`sag ${r(lens.sagUm)} µm > ${r(limits.maxSagUm)} µm`)
+  // As geometry is shown everywhere (0.01 µm, 3 significant digits); when the breach is finer than that, both sides
+  // get 6 significant digits so the message never reads "2.00 µm > 2.00 µm".
+  const pair = (v: number, lim: number, f: (x: number) => string, unit: string): [string, string] => {
+    const a = f(v), b = f(lim)
+    return a !== b ? [a, b] : [`${Number(v.toPrecision(6))}${unit}`, `${Number(lim.toPrecision(6))}${unit}`]
+  }
+  if (limits.maxSagUm !== undefined && lens.sagUm > limits.maxSagUm) {
+    const [a, b] = pair(lens.sagUm, limits.maxSagUm, (x) => lengthUm(x), ' µm')
+    out.push(`sag ${a} > ${b}`)
+  }
   const aspect = lens.sagUm / lens.diameterUm
-  if (limits.maxAspectRatio !== undefined && aspect > limits.maxAspectRatio) out.push(`aspect ratio h/D ${r(aspect)} > ${r(limits.maxAspectRatio)}`)
+  if (limits.maxAspectRatio !== undefined && aspect > limits.maxAspectRatio) {
+    const [a, b] = pair(aspect, limits.maxAspectRatio, ratio, '')
+    out.push(`aspect ratio h/D ${a} > ${b}`)
+  }
   // Gap along the lattice's nearest-neighbour direction (pitch − diameter), the narrowest land the tool must cut.
   const gap = lens.pitchUm - lens.diameterUm
-  if (limits.minGapUm !== undefined && gap < limits.minGapUm) out.push(`gap ${r(gap)} µm < ${r(limits.minGapUm)} µm`)
+  if (limits.minGapUm !== undefined && gap < limits.minGapUm) {
+    const [a, b] = pair(gap, limits.minGapUm, (x) => lengthUm(x), ' µm')
+    out.push(`gap ${a} < ${b}`)
+  }
   return out
 }
 

@@ -6,6 +6,7 @@
 import { z } from 'zod'
 import { runNameSchema } from './run'
 import { FIGURE_KEYS, type Figure } from './figures'
+import { MAX_RAYS_PER_CELL, MIN_RAYS_PER_CELL } from './ray-limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
 
@@ -72,9 +73,9 @@ export type { Figure }
  */
 export const precisionSchema = z
   .object({
-    rays: z.number().int().min(1000).max(1e9).optional(),
+    rays: z.number().int().min(MIN_RAYS_PER_CELL).max(MAX_RAYS_PER_CELL).optional(),
     targetStdErr: z.number().positive().max(0.1).optional(),
-    rayCap: z.number().int().min(1000).max(1e9).optional(),
+    rayCap: z.number().int().min(MIN_RAYS_PER_CELL).max(MAX_RAYS_PER_CELL).optional(),
   })
   .superRefine((p, ctx) => {
     if (p.rays !== undefined && p.targetStdErr !== undefined) {

@@ -154,9 +154,18 @@ describe('team ray limit', () => {
     expect(ok.length).toBe(2)
     expect(refused.length).toBe(8)
     for (const r of refused) {
-      expect(r.body.message).toMatch(/This would queue 400 M rays; your team already has 800 M waiting and the limit is 1\.00 G/)
+      expect(r.body.message).toMatch(/This would queue 400 M rays, and at most 200 M more can be queued now: your team already has 800 M waiting and the limit is 1\.00 G\./)
     }
     for (const r of ok) expect((await t.client.post(`/api/runs/${r.body.run.id}/cancel`)).status).toBe(200)
+  })
+
+  it('a lens design counts each ray twice: 5·10⁸ + 1 000 rays are refused in the user\'s rays, and the design says the limit', async () => {
+    const t = await teamWithDesign('twice')
+    const got = await t.client.get(`/api/designs/${t.design.id}`)
+    expect(got.body.teamRayLimit).toBe(1_000_000_000)
+    const r = await t.client.post('/api/runs', { designId: t.design.id, precision: { rays: 500_001_000 } })
+    expect(r.status).toBe(429)
+    expect(r.body.message).toMatch(/This would queue 500 001 000 rays, and at most 500 M can be queued now: each ray of a lens design is traced twice/)
   })
 
   it("a precision run holds its whole ray cap against the limit, not just its first batch", async () => {

@@ -70,7 +70,7 @@ describe('demo results', () => {
     const row = page.locator('[data-testid=sweep-table] tbody tr').filter({ has: page.locator('td:first-child', { hasText: new RegExp(`^${best.cellIndex}$`) }) })
     const shownSag = Number(await row.locator('td').nth(sagCol).textContent())
     const [radius, fill] = best.coordinates as [number, number]
-    expect(shownSag).toBeCloseTo(sagUm(radius, hexDiameterUm(fill, pitch)), 3)
+    expect(shownSag).toBeCloseTo(sagUm(radius, hexDiameterUm(fill, pitch)), 2) // shown to 0.01 µm
     await shot(page, '21-demo-sweep')
   })
 
@@ -92,7 +92,7 @@ describe('demo results', () => {
     expect(over).toBeGreaterThan(0)
     expect(over).toBeLessThan(36)
     await expect.poll(() => page.locator('[data-testid=sweep-table] td[data-breaks-limit=true]').count()).toBe(over)
-    expect(await page.locator('[data-testid=sweep-table] td[data-breaks-limit=true]').first().textContent()).toMatch(/sag [\d.]+ µm > 2 µm/)
+    expect(await page.locator('[data-testid=sweep-table] td[data-breaks-limit=true]').first().textContent()).toMatch(/sag \d+\.\d\d µm > 2\.00 µm/) // shown to 0.01 µm, as the sag column
     await shot(page, '22-demo-sweep-limit')
     // back to the demo's stated limit
     const res = await page.evaluate(async (u) => (await fetch(u, { method: 'PATCH', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ limits: { maxSagUm: 5 } }) })).status, `/api/projects/${projectId}`)

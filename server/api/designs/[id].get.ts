@@ -1,7 +1,10 @@
 import { idParamSchema } from '../../../shared/types/project'
+import { jobSettings } from '../../jobs/config'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
   const { design, role } = await requireDesignRole(event, id, ANY_ROLE)
-  return { design, role }
+  // The team's queue limit in traced rays, so the run form can state the most rays a run of this design may ask
+  // for (shared/types/ray-limits.ts) before the server would refuse it.
+  return { design, role, teamRayLimit: jobSettings().teamRayLimit }
 })
