@@ -159,13 +159,13 @@ describe('team ray limit', () => {
     for (const r of ok) expect((await t.client.post(`/api/runs/${r.body.run.id}/cancel`)).status).toBe(200)
   })
 
-  it('a lens design counts each ray twice: 5·10⁸ + 1 000 rays are refused in the user\'s rays, and the design says the limit', async () => {
-    const t = await teamWithDesign('twice')
+  it('a lens design over a pixel counts each ray twice: 5·10⁸ + 1 000 rays are refused in the user\'s rays, and the design says the limit', async () => {
+    const t = await teamWithDesign('twice', { ...validScenario, emitter: { ...validScenario.emitter, source: { shape: 'disc', radiusUm: 200 } } })
     const got = await t.client.get(`/api/designs/${t.design.id}`)
     expect(got.body.teamRayLimit).toBe(1_000_000_000)
     const r = await t.client.post('/api/runs', { designId: t.design.id, precision: { rays: 500_001_000 } })
     expect(r.status).toBe(429)
-    expect(r.body.message).toMatch(/This would queue 500 001 000 rays, and at most 500 M can be queued now: each ray of a lens design is traced twice/)
+    expect(r.body.message).toMatch(/This would queue 500 001 000 rays, and at most 500 M can be queued now: each ray of a lens design over a pixel source is traced twice/)
   })
 
   it("a precision run holds its whole ray cap against the limit, not just its first batch", async () => {

@@ -62,11 +62,11 @@ describe('signed in as a designer', () => {
     designUrl = page.url()
   })
 
-  it('the run form states one ray limit in the user\'s rays: 500 000 000 for a lens design (device + flat companion)', async () => {
-    expect(await page.getByTestId('run-rays-hint').textContent()).toContain('at most 500,000,000')
-    await page.locator('#run-rays').fill('600000000')
-    await expect.poll(() => page.getByTestId('run-rays-limit').textContent()).toContain('from 1,000 to 500,000,000')
-    expect(await page.getByTestId('run-rays-limit').textContent()).toContain('traced twice')
+  it('the run form states one ray limit in the user\'s rays: 1 000 000 000 for a lens design over an extended source (its flat companion by quadrature costs no rays)', async () => {
+    expect(await page.getByTestId('run-rays-hint').textContent()).toContain('at most 1,000,000,000')
+    await page.locator('#run-rays').fill('1000000001')
+    await expect.poll(() => page.getByTestId('run-rays-limit').textContent()).toContain('from 1,000 to 1,000,000,000')
+    expect(await page.getByTestId('run-rays-limit').textContent()).not.toContain('traced twice')
     expect(await page.getByTestId('run-start').isEnabled()).toBe(false)
     await page.locator('#run-rays').fill('200000')
   })

@@ -1,16 +1,19 @@
-// The one ray limit, in the user's rays (shared/types/ray-limits.ts): the team's queue counts traced rays and a lens
-// design traces each ray twice (device + planar companion), so the request schema's 10⁹ per cell and the team's 10⁹
-// traced rays give 5·10⁸ for one lens run. The refusal says the same number the form does.
+// The one ray limit, in the user's rays (shared/types/ray-limits.ts): the team's queue counts traced rays; a lens
+// design over a pixel source traces each ray twice (device + traced planar companion), so the request schema's 10⁹
+// per cell and the team's 10⁹ traced rays give 5·10⁸ for one such run; over an extended source the companion is a
+// quadrature (no rays) and the limit is 10⁹. The refusal says the same number the form does.
 import { describe, expect, it } from 'vitest'
 import { DEFAULT_TEAM_RAY_LIMIT, MAX_RAYS_PER_CELL, maxRaysPerCell, rayLimitMessage, tracedPerRay } from '../../shared/types/ray-limits'
 import { precisionSchema } from '../../shared/types/sweep'
 
-const lens = { lensArray: { pitchUm: 10 } }
+const lens = { lensArray: { pitchUm: 10 }, emitter: { source: { shape: 'disc' } } }
+const lensExtended = { lensArray: { pitchUm: 10 }, emitter: { source: { shape: 'extended' } } }
 const flat = { lensArray: null }
 
 describe('the most rays a run may ask for', () => {
-  it('a lens design counts twice, a flat one once', () => {
+  it('a lens design over a pixel counts twice; over an extended source (quadrature companion) and a flat one, once', () => {
     expect(tracedPerRay(lens)).toBe(2)
+    expect(tracedPerRay(lensExtended)).toBe(1)
     expect(tracedPerRay(flat)).toBe(1)
     expect(maxRaysPerCell(DEFAULT_TEAM_RAY_LIMIT, tracedPerRay(lens))).toBe(500_000_000)
     expect(maxRaysPerCell(DEFAULT_TEAM_RAY_LIMIT, tracedPerRay(flat))).toBe(1_000_000_000)
@@ -33,7 +36,7 @@ describe('the refusal names the same limit', () => {
   it('a 6·10⁸-ray lens run: at most 500 M, and why', () => {
     const m = rayLimitMessage(600_000_000, 1, 2, 0, 1e9)
     expect(m).toContain('This would queue 600 M rays, and at most 500 M can be queued now')
-    expect(m).toContain('each ray of a lens design is traced twice')
+    expect(m).toContain('each ray of a lens design over a pixel source is traced twice')
   })
   it('a flat run with 800 M waiting: at most 200 M more', () => {
     expect(rayLimitMessage(400_000_000, 1, 1, 800_000_000, 1e9))

@@ -1,5 +1,5 @@
 import { idParamSchema } from '../../../shared/types/project'
-import { jobSettings } from '../../jobs/config'
+import { jobSettings } from '../../queue/config'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))
