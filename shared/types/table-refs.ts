@@ -89,17 +89,17 @@ export interface ResolvedRefs {
   scenario: unknown
   /** One message per reference that cannot be used, in the editor's words, with the scenario path it is about. */
   errors: Array<{ path: string; message: string }>
-  /** References whose table the caller has not loaded yet (only with `pending: 'placeholder'`). */
+  /** References whose table the caller has not loaded yet (those `isPending` says so of). */
   pending: string[]
 }
 
 /**
  * Replaces every reference by its table's rows. `lookup` returns the table if the reader may use it (another
- * team's table must come back undefined: it reads as unknown). With `pending: 'placeholder'` an unknown table is
- * stood in for by a neutral value (a 550 nm line, n = 1.5) so the rest of the scenario can still be checked while
- * its rows load; otherwise it is an error.
+ * team's table must come back undefined: it reads as unknown). A table `isPending` says is still loading is stood
+ * in for by a neutral value (a 550 nm line, n = 1.5) so the rest of the scenario can still be checked meanwhile;
+ * any other unknown table is an error.
  */
-export function resolveTableRefs(raw: unknown, lookup: (id: string) => RefTable | undefined, opts: { pending?: 'placeholder' | 'error' } = {}): ResolvedRefs {
+export function resolveTableRefs(raw: unknown, lookup: (id: string) => RefTable | undefined, opts: { isPending?: (id: string) => boolean } = {}): ResolvedRefs {
   let scenario = raw
   const errors: ResolvedRefs['errors'] = []
   const pending: string[] = []
@@ -111,9 +111,13 @@ export function resolveTableRefs(raw: unknown, lookup: (id: string) => RefTable 
       const sp = spectrumSchema.optional().safeParse(at(scenario, ['emitter', 'spectrum']))
       range = sp.success ? spectrumRangeNm(sp.data) : null
     }
+    if (tableId === '') {
+      errors.push({ path, message: `${field.words}: choose an uploaded table (${TABLE_KIND_WORDS[field.kind]})` })
+      continue
+    }
     const t = lookup(tableId)
     if (!t) {
-      if (opts.pending === 'placeholder') {
+      if (opts.isPending?.(tableId)) {
         pending.push(tableId)
         scenario = withValue(scenario, field.path, spectrumField ? { wavelengthNm: 550 } : 1.5)
       } else {
@@ -167,7 +171,7 @@ export function restoreTableRefs(parsed: Scenario, raw: unknown): unknown {
  * the tables themselves, server/utils/table-refs.ts). Output: parsed, defaults filled in, references kept.
  */
 export const scenarioWithRefsSchema = z.unknown().transform((raw, ctx) => {
-  const stood = resolveTableRefs(raw, () => undefined, { pending: 'placeholder' })
+  const stood = resolveTableRefs(raw, () => undefined, { isPending: () => true })
   const r = scenarioSchema.safeParse(stood.scenario)
   if (!r.success) {
     for (const iss of r.error.issues) ctx.addIssue({ ...iss } as Parameters<typeof ctx.addIssue>[0])
