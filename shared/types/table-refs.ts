@@ -56,9 +56,23 @@ export function tableRefsOf(raw: unknown): Array<{ field: TableRefField; tableId
   return out
 }
 
+/**
+ * A deep copy of plain JSON-like data. Not structuredClone: the editor passes reactive proxies, which it cannot
+ * clone; not JSON: a NaN (an unparseable entry) must stay NaN for the schema to name it.
+ */
+function plainCopy(v: unknown): unknown {
+  if (Array.isArray(v)) return v.map(plainCopy)
+  if (v !== null && typeof v === 'object') {
+    const out: Record<string, unknown> = {}
+    for (const k of Object.keys(v)) out[k] = plainCopy((v as Record<string, unknown>)[k])
+    return out
+  }
+  return v
+}
+
 /** A copy of `raw` with `value` at `path` (the parents exist: a reference was found there). */
 function withValue<T>(raw: T, path: readonly string[], value: unknown): T {
-  const copy = structuredClone(raw) as Record<string, unknown>
+  const copy = plainCopy(raw) as Record<string, unknown>
   let v = copy
   for (const k of path.slice(0, -1)) v = v[k] as Record<string, unknown>
   v[path[path.length - 1]!] = value

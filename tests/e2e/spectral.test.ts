@@ -4,6 +4,7 @@
 // spectrum picked by reference. Screenshots go to test-output/e2e/.
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import { collectErrors, launch, shot, signIn, type Page } from './browser'
+import { colourResultFixture } from '../fixtures/colour-result'
 
 const baseUrl = inject('e2eBaseUrl')
 let session: Awaited<ReturnType<typeof launch>>
@@ -119,6 +120,39 @@ describe('spectrum and materials in the editor', () => {
     const saved = (await api('GET', `/api/designs/${designId}`)).body.design.scenario
     const tables = (await api('GET', `/api/projects/${projectId}/tables`)).body.tables
     expect(saved.emitter.spectrum).toEqual({ tableId: tables.find((t: { name: string }) => t.name === 'Green sub-pixel G2').id })
+    expect(pageErrors).toEqual([])
+  })
+
+  it('a traced run of it shows colour over angle (colour numbers from the contract-shaped fixture where the result has none)', async () => {
+    const run = await api('POST', '/api/runs', { designId, precision: { rays: 20000 } })
+    expect(run.status, JSON.stringify(run.body)).toBe(201)
+    const runId = run.body.run.id as string
+    // the run stores the uploaded spectrum's rows, not the reference
+    expect(run.body.run.baseScenario.emitter.spectrum.table).toHaveLength(8)
+    await expect.poll(async () => (await api('GET', `/api/runs/${runId}`)).body.run.status, { timeout: 180_000, interval: 1000 }).toBe('done')
+    // Until the engine writes result.colour, the browser's copy of the cell gets the fixture's colour blocks
+    // (tests/fixtures/colour-result.ts: invented numbers of the colourSchema shape) so the charts draw.
+    const fixture = colourResultFixture()
+    await page.route('**/api/runs/*/cells/0', async (route) => {
+      const res = await route.fetch()
+      const body = await res.json()
+      if (body.result && !body.result.colour) {
+        Object.assign(body.result, { colour: fixture.colour, planarColour: fixture.planarColour, photopicOnAxisGain: fixture.photopicOnAxisGain, photopicOnAxisGainStdErr: fixture.photopicOnAxisGainStdErr })
+      }
+      await route.fulfill({ response: res, json: body })
+    })
+    await openEditor()
+    // client-side navigation, so the cell is fetched by the browser (a server-rendered page fetches it on the server)
+    await page.evaluate((id) => (document.querySelector('#__nuxt') as unknown as { __vue_app__: { config: { globalProperties: { $router: { push: (p: string) => Promise<void> } } } } }).__vue_app__.config.globalProperties.$router.push(`/runs/${id}`), runId)
+    await page.getByTestId('colour-result').waitFor({ timeout: 60_000 })
+    for (const id of ['chart-chromaticity', 'chart-delta-uv', 'chart-spectra', 'chart-photopic']) await page.getByTestId(id).locator('canvas').first().waitFor()
+    expect(await page.getByTestId('figure-max-duv').textContent()).toMatch(/Largest colour shift 0–60° \(Δu′v′\)0\.\d+ ± 0\.\d+flat device 0\.\d+ ± 0\.\d+/)
+    expect(await page.getByTestId('figure-photopic').textContent()).toContain('× Lamb.')
+    await shot(page, 'spectral-06-colour-result')
+    await page.getByTestId('chromaticity-zoom').uncheck()
+    await page.getByTestId('chart-chromaticity').scrollIntoViewIfNeeded()
+    await shot(page, 'spectral-07-chromaticity-whole-diagram')
+    await page.unroute('**/api/runs/*/cells/0')
     expect(pageErrors).toEqual([])
   })
 })

@@ -83,3 +83,14 @@ describe('emission spectrum uploads', () => {
     expect((z as { errors: { message: string }[] }).errors[0]!.message).toBe('at least one relative spectral power must be above 0')
   })
 })
+
+describe('resolving reactive editor state', () => {
+  it('reads through a Proxy (as Vue hands the draft over) and keeps NaN entries for the schema to name', () => {
+    const raw = base(); (raw.reflector as Record<string, unknown>).reflectance = NaN
+    const proxied = new Proxy(raw, {})
+    const r = resolveTableRefs(proxied, (id) => tables.get(id))
+    expect(r.errors).toEqual([])
+    expect(Number.isNaN((r.scenario as any).reflector.reflectance)).toBe(true)
+    expect((r.scenario as any).emitter.spectrum.table).toHaveLength(5)
+  })
+})
