@@ -138,7 +138,8 @@ export function spectraOption(cs: Colours): Record<string, unknown> {
     grid: { left: 56, right: 16, top: 36, bottom: 64 },
     legend: { bottom: 0 },
     tooltip: { trigger: 'axis', valueFormatter: (v: number) => (v === null ? '—' : v.toFixed(3)) },
-    xAxis: { type: 'value', min: nm[0], max: nm[nm.length - 1], name: 'λ (nm)', nameLocation: 'middle', nameGap: 26 },
+    // the bins' outer edges (380–780 nm), not their centres
+    xAxis: { type: 'value', min: nm[0]! - d.wavelengthBinNm / 2, max: nm[nm.length - 1]! + d.wavelengthBinNm / 2, name: 'λ (nm)', nameLocation: 'middle', nameGap: 26 },
     yAxis: { type: 'value', name: 'relative spectral power (peak = 1)', nameTextStyle: { align: 'left' }, min: 0 },
     series: [...d.spectra.anglesDeg.map((_, k) => line(d, k, false)), ...(f ? f.spectra.anglesDeg.map((_, k) => line(f, k, true)) : [])],
   }
