@@ -28,3 +28,13 @@ describe('n(λ) over the spectrum', () => {
     expect(indexCurveCsv(pole).rows[0]).toEqual([500, null])
   })
 })
+
+describe('spectrum in a result\'s settings', async () => {
+  const { describeSpectrum } = await import('../../app/utils/spectrum')
+  it('names each form with its unit', () => {
+    expect(describeSpectrum(undefined)).toBe('none (550 nm line, no colour figures)')
+    expect(describeSpectrum({ wavelengthNm: 530 })).toBe('line at 530 nm')
+    expect(describeSpectrum({ peakNm: 530, fwhmNm: 40 })).toBe('Gaussian, peak 530 nm, FWHM 40 nm')
+    expect(describeSpectrum({ table: [[480, 0], [620, 0]] })).toBe('table of 2 rows, 480–620 nm')
+  })
+})
