@@ -34,7 +34,7 @@ export function indexCurveOption(c: IndexCurve): Record<string, unknown> {
     tooltip: { trigger: 'axis', valueFormatter: (v: number) => (Number.isFinite(v) ? v.toFixed(4) : '—') },
     xAxis: { type: 'value', min: Math.round(c.spanNm[0]), max: Math.round(c.spanNm[1]), name: 'λ (nm)', nameLocation: 'middle', nameGap: 24 },
     yAxis: [
-      { type: 'value', name: 'n', min: Number((nMin - pad).toFixed(4)), max: Number((nMax + pad).toFixed(4)), axisLabel: { formatter: (v: number) => v.toFixed(3) } },
+      { type: 'value', name: 'n', min: Number((nMin - pad).toFixed(4)), max: Number((nMax + pad).toFixed(4)), splitNumber: 3, axisLabel: { formatter: (v: number) => v.toFixed(3) } },
       ...(c.k ? [{ type: 'value', name: 'k', position: 'right', splitLine: { show: false }, axisLabel: { formatter: (v: number) => v.toExponential(0) } }] : []),
     ],
     series: [
