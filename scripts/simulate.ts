@@ -90,7 +90,7 @@ async function main() {
     fail(`${args.file} is not valid JSON: ${(e as Error).message}`)
   }
   const refs = tableRefsOf(data)
-  if (refs.length) fail(`${args.file}: ${refs.map((r) => r.field.words).join(", ")} ${refs.length === 1 ? "refers" : "refer"} to uploaded tables by tableId, which only the server resolves; give the rows inline ({ "table": [[nm, …], …] }) here`)
+  if (refs.length) fail(`${args.file}: ${refs.map((r) => r.field.words).join(', ')} ${refs.length === 1 ? 'refers' : 'refer'} to uploaded tables by tableId, which only the server resolves; give the rows inline ({ "table": [[nm, …], …] }) here`)
   const parsed = parseScenario(data)
   if (!parsed.ok) fail(`${args.file} is not a valid scenario:\n  ${parsed.errors.join('\n  ')}`)
   const sc = parsed.scenario
