@@ -1,5 +1,6 @@
 // The colour charts (app/utils/charts/colour.ts, cieLocus.ts) against a result of the contract's shape
 // (tests/fixtures/colour-result.ts: traced base, invented colour numbers).
+import { existsSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { resultSchema } from '../../shared/types/result'
 import { SPECTRAL_LOCUS_XY } from '../../app/utils/charts/cieLocus'
@@ -34,6 +35,17 @@ describe('spectral locus (CIE 1931 2°)', () => {
     const left = SPECTRAL_LOCUS_XY.reduce((a, b) => (b[1] < a[1] ? b : a))
     expect(top[0]).toBe(520)
     expect(left[0]).toBe(505)
+  })
+  // The engine's colour-matching functions (x = x̄/(x̄ + ȳ + z̄)), once the engine carries them: the same CIE table.
+  const cmfFile = new URL('../../shared/optics/cie1931.ts', import.meta.url)
+  it.skipIf(!existsSync(cmfFile))('agrees with the chromaticity of the engine\'s CIE 1931 colour-matching functions to 2e-4', async () => {
+    const cie = await import(/* @vite-ignore */ cmfFile.href) as { CIE_X: Float64Array; CIE_Y: Float64Array; CIE_Z: Float64Array }
+    for (const [nm, x, y] of SPECTRAL_LOCUS_XY) {
+      const i = (nm - 380) / 5
+      const s = cie.CIE_X[i]! + cie.CIE_Y[i]! + cie.CIE_Z[i]!
+      expect(Math.abs(cie.CIE_X[i]! / s - x), `x at ${nm} nm`).toBeLessThan(2e-4)
+      expect(Math.abs(cie.CIE_Y[i]! / s - y), `y at ${nm} nm`).toBeLessThan(2e-4)
+    }
   })
   it('equal-energy white (1/3, 1/3) lies inside the closed locus (ray-casting point-in-polygon)', () => {
     const poly = SPECTRAL_LOCUS_XY.map(([, x, y]) => [x, y] as const)

@@ -1,8 +1,9 @@
 // The spectral locus of the CIE 1931 2° standard observer: chromaticity (x, y) of monochromatic light, 380–700 nm
 // every 5 nm (beyond 700 nm the locus stays at its 700 nm point to the 4 decimals shown). Source: CIE 015:2018,
 // Colorimetry, 4th ed., and the same 5 nm table in Wyszecki & Stiles, Color Science, 2nd ed., Table II(3.3.1)
-// (chromaticity coordinates of the spectrum colours). Typed here from memory of those tables to 4 decimals: check
-// against the colour-matching functions in shared/optics/cie1931.ts once the engine carries them (x = x̄/(x̄+ȳ+z̄)).
+// (chromaticity coordinates of the spectrum colours). Typed here from memory of those tables to 4 decimals;
+// tests/unit/colour-charts.test.ts holds them to the engine's colour-matching functions (shared/optics/cie1931.ts,
+// x = x̄/(x̄+ȳ+z̄)) within 2e-4 whenever that file is present.
 // The chart only draws the outline with it; no figure is computed from these numbers.
 
 /** [wavelength nm, x, y] */
