@@ -7,6 +7,7 @@ import { readFileSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { parseArgs as parseCliArgs } from 'node:util'
 import { parseScenario } from '../shared/types/scenario'
+import { tableRefsOf } from '../shared/types/table-refs'
 import type { TraceResult } from '../shared/types/result'
 import { packScene, reciprocalDirections } from '../shared/optics'
 import { traceOnPool } from './trace-pool'
@@ -127,6 +128,8 @@ async function main() {
   } catch (e) {
     fail(`${args.file} is not valid JSON: ${(e as Error).message}`)
   }
+  const refs = tableRefsOf(data)
+  if (refs.length) fail(`${args.file}: ${refs.map((r) => r.field.words).join(', ')} ${refs.length === 1 ? 'refers' : 'refer'} to uploaded tables by tableId, which only the server resolves; give the rows inline ({ "table": [[nm, …], …] }) here`)
   const parsed = parseScenario(data)
   if (!parsed.ok) fail(`${args.file} is not a valid scenario:\n  ${parsed.errors.join('\n  ')}`)
   const sc = parsed.scenario

@@ -287,7 +287,7 @@ export const shortlistEvents = pgTable('shortlist_events', {
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [index('shortlist_events_project_idx').on(t.projectId, t.createdAt)])
 
-export const dataTableKindEnum = pgEnum('data_table_kind', ['lens_profile', 'angular_profile', 'refractive_index'])
+export const dataTableKindEnum = pgEnum('data_table_kind', ['lens_profile', 'angular_profile', 'refractive_index', 'emission_spectrum'])
 
 /** An uploaded, validated CSV table of a project: rows as numbers in the columns of its kind. */
 export const dataTables = pgTable('data_tables', {

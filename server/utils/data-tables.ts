@@ -1,4 +1,4 @@
-// Uploaded measurement tables (CSV): lens profiles, emitter angular profiles, refractive-index tables. The body is
+// Uploaded measurement tables (CSV): lens profiles, emitter angular profiles, refractive-index tables, emission spectra. The body is
 // refused with 413 from its declared Content-Length before a byte of it is read; a body without a declared length
 // is refused with 411 (a limit on what is read would do too, but every upload client sends the length). The
 // content is then checked by shared/utils/csv-table.ts and stored in one insert, or not at all.
@@ -89,10 +89,13 @@ export function describeTable(t: DataTable) {
   return { ...rest, use: tableUse(t) }
 }
 
-/** The scenario fragment a table becomes (lens profile → lensArray fields, angular profile → angularProfile). A
+/** The scenario fragment a table becomes (lens profile → lensArray fields, angular profile → angularProfile, n,k
+ * table → an index, emission spectrum → emitter.spectrum; scenarios may also refer to the last two by tableId). A
  * fitted trace becomes its fitted rows; the raw rows stay stored beside them. */
 export function tableUse(t: Pick<DataTable, 'kind' | 'rows'> & { fittedRows?: number[][] | null }) {
   if (t.kind === 'angular_profile') return { angularProfile: { table: t.rows } }
+  if (t.kind === 'refractive_index') return { index: { table: t.rows } }
+  if (t.kind === 'emission_spectrum') return { spectrum: { table: t.rows } }
   if (t.kind === 'lens_profile') {
     const rows = t.fittedRows ?? t.rows
     const first = rows[0]!, last = rows[rows.length - 1]!

@@ -12,6 +12,7 @@ import { RunRequestError } from '../runs/plan'
 import { requireDesignRole } from './access'
 import { requireUser } from './auth'
 import { useDb } from './db'
+import { resolveScenarioTables } from './table-refs'
 
 export async function requireRunRole(
   event: H3Event, runId: string, allowed: readonly Role[], what = 'this action',
@@ -40,13 +41,16 @@ export async function startRunFromRequest(
 ) {
   const { user, project, design } = await requireDesignRole(event, body.designId, ['lead', 'designer'],
     kind === 'sweep' ? 'starting a sweep' : 'starting a run')
+  // The run stores the scenario with its table references replaced by the tables' rows (reproducible if a table
+  // changes or is deleted later); an unusable reference is a 400 naming the field.
+  const scenario = await resolveScenarioTables(useDb(), project.teamId, design.scenario)
   try {
     return await createRun({
       ...body,
       kind,
       projectId: project.id,
       teamId: project.teamId,
-      design: { id: design.id, name: design.name, version: design.version, scenario: design.scenario },
+      design: { id: design.id, name: design.name, version: design.version, scenario },
       userId: user.id,
     })
   } catch (err) {

@@ -2,8 +2,8 @@
 import { z } from 'zod'
 import { stripBidiControls } from './limits'
 
-export const dataTableKindSchema = z.enum(['lens_profile', 'angular_profile', 'refractive_index'], {
-  error: 'kind must be one of lens_profile (r_um, height_um), angular_profile (theta_deg, intensity), refractive_index (wavelength_nm, n, k)',
+export const dataTableKindSchema = z.enum(['lens_profile', 'angular_profile', 'refractive_index', 'emission_spectrum'], {
+  error: 'kind must be one of lens_profile (r_um, height_um), angular_profile (theta_deg, intensity), refractive_index (wavelength_nm, n, k), emission_spectrum (wavelength_nm, intensity)',
 })
 
 export const dataTableUploadQuerySchema = z.object({

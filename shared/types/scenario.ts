@@ -444,6 +444,8 @@ export function fresnelModeOf(scenario: unknown): FresnelMode | undefined {
 export function describeIndex(m: IndexModel | undefined): string {
   if (m === undefined) return '—'
   if (typeof m === 'number') return String(m)
+  // a design's reference to an uploaded table (shared/types/table-refs.ts): resolved only when a run is created
+  if ('tableId' in (m as object)) return 'uploaded n,k table'
   const kind = 'sellmeier' in m ? 'Sellmeier' : 'cauchy' in m ? 'Cauchy' : 'n,k table'
   return `${kind} (${indexAt(m, DEFAULT_WAVELENGTH_NM).toFixed(4)} at ${DEFAULT_WAVELENGTH_NM} nm)`
 }

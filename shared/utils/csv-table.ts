@@ -13,13 +13,15 @@
 //   "=1+2", "-1+2", "@SUM(A1)" and "+A1" are refused as formulas. Such a cell would run as a formula when the
 //   table is exported and opened in a spreadsheet.
 // - Every other cell must be a plain decimal number (no thousands separators, no units); then per-kind checks.
+// - An emission spectrum (wavelength_nm, intensity) has wavelengths of 200–2500 nm increasing, intensities ≥ 0 (one
+//   above 0) and at most 5000 rows: what a scenario's `emitter.spectrum.table` holds.
 // - A lens profile to be fitted (`{ trace: true }`, see profile-fit.ts) may rise towards the rim and need not have
 //   its centre above the rim: the fit decides whether it is a cap. It must still start at r_um = 0, have r_um
 //   increasing and no negative heights.
 
 import Papa from 'papaparse'
 
-export type DataTableKind = 'lens_profile' | 'angular_profile' | 'refractive_index'
+export type DataTableKind = 'lens_profile' | 'angular_profile' | 'refractive_index' | 'emission_spectrum'
 
 export const MAX_TABLE_BYTES = 2 * 1024 * 1024
 export const MAX_TABLE_ROWS = 100_000
@@ -40,7 +42,14 @@ export const TABLE_COLUMNS: Record<DataTableKind, ColumnSpec[]> = {
     { name: 'n', aliases: ['n'] },
     { name: 'k', aliases: ['k'] },
   ],
+  emission_spectrum: [
+    { name: 'wavelength_nm', aliases: ['wavelength', 'wavelength_nm', 'lambda', 'lambda_nm'] },
+    { name: 'intensity', aliases: ['intensity', 'relative_intensity', 'rel_intensity', 'power', 'relative_power', 'spd', 'counts'] },
+  ],
 }
+
+/** Most rows an emission spectrum may have: what a scenario's spectrum table holds (shared/types/scenario.ts). */
+export const MAX_SPECTRUM_ROWS = 5000
 
 export interface TableLineError { line: number; column?: string; message: string }
 
@@ -209,6 +218,10 @@ function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail
     } else if (kind === 'angular_profile') {
       if (a < 0 || a > 180) fail({ line, column: c0, message: `line ${line}, ${c0}: must be between 0 and 180 degrees, got ${a}` })
       if (b < 0) fail({ line, column: c1, message: `line ${line}, ${c1}: relative intensity must be 0 or more, got ${b}` })
+    } else if (kind === 'emission_spectrum') {
+      // the wavelengths a scenario traces (shared/types/scenario.ts: 200–2500 nm)
+      if (a < 200 || a > 2500) fail({ line, column: c0, message: `line ${line}, ${c0}: must be between 200 and 2500 nm, got ${a}` })
+      if (b < 0) fail({ line, column: c1, message: `line ${line}, ${c1}: relative spectral power must be 0 or more, got ${b}` })
     } else {
       if (a < 100 || a > 20_000) fail({ line, column: c0, message: `line ${line}, ${c0}: must be between 100 and 20000 nm, got ${a}` })
       if (b < 1 || b > 5) fail({ line, column: c1, message: `line ${line}, ${c1}: refractive index n must be between 1 and 5, got ${b}` })
@@ -229,5 +242,9 @@ function checkKind(kind: DataTableKind, rows: number[][], lineOf: number[], fail
   }
   if (kind === 'angular_profile' && good.length === rows.length && !good.some((r) => r[1]! > 0)) {
     fail({ line: lineOf[0]!, column: c1, message: 'at least one relative intensity must be above 0' })
+  }
+  if (kind === 'emission_spectrum' && good.length === rows.length) {
+    if (!good.some((r) => r[1]! > 0)) fail({ line: lineOf[0]!, column: c1, message: 'at least one relative spectral power must be above 0' })
+    if (good.length > MAX_SPECTRUM_ROWS) fail({ line: lineOf[MAX_SPECTRUM_ROWS]!, message: `line ${lineOf[MAX_SPECTRUM_ROWS]}: an emission spectrum may have at most ${MAX_SPECTRUM_ROWS} rows; got ${good.length} (bin it, e.g. to 1 nm)` })
   }
 }

@@ -1,0 +1,1 @@
+ALTER TYPE "public"."data_table_kind" ADD VALUE 'emission_spectrum';
