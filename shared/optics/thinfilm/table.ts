@@ -26,7 +26,7 @@ export interface ThinFilmTable {
 }
 
 /** cyrb53 (a public-domain 53-bit string hash): stable across runs and platforms, collisions ~2⁻⁵³ per pair. */
-function hash53(str: string): string {
+export function hash53(str: string): string {
   let h1 = 0xdeadbeef, h2 = 0x41c6ce57
   for (let i = 0; i < str.length; i++) {
     const c = str.charCodeAt(i)
