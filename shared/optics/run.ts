@@ -3,13 +3,14 @@
 // follows (σE/E)² = (σ1/η1)² + (σ2/η2)². A planar scenario is its own companion (enhancement exactly 1, σ 0).
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import type { FresnelMode, Scenario } from '../types/scenario'
+import { scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
+import { applyThinFilm } from './thinfilm/result'
 import type { Losses, TraceResult } from '../types/result'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
   createTally, mergeTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
-  T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
+  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
 export const CHUNK_RAYS = 1 << 16
@@ -31,7 +32,20 @@ export interface RunTallies {
 
 export function prepareRun(sc: Scenario): RunScenes {
   const device = packScene(sc)
-  return { device, planar: device[S_HAS_LENS] ? packScene(sc, { planar: true }) : null }
+  // A thin-film source's flat companion is exact (thinfilm/flat.ts): traced only for a finite pixel's footprint tally.
+  const tracedCompanion = device[S_HAS_LENS] !== 0 && (sc.emitter.thinFilm === undefined || sc.emitter.source.shape !== 'extended')
+  return { device, planar: tracedCompanion ? packScene(sc, { planar: true }) : null }
+}
+
+/**
+ * The scenario summarize needs besides the counts (a thin-film stack's exact parts), from a stored scenario; undefined
+ * for the sheet emitter, whose result follows from the counts alone.
+ */
+export function summaryScenario(stored: unknown): Scenario | undefined {
+  const tf = (stored as { emitter?: { thinFilm?: unknown } } | null)?.emitter?.thinFilm
+  if (tf === undefined) return undefined
+  const parsed = scenarioSchema.safeParse(stored)
+  return parsed.success ? parsed.data : undefined
 }
 
 /** Fixed chunk plan for `rays` rays: [firstRay, rayCount] pairs. */
@@ -70,7 +84,7 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const run = prepareRun(sc)
   const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
-  return summarize(total, seed, sc.trace.fresnel)
+  return summarize(total, seed, sc.trace.fresnel, sc)
 }
 
 function binomialErr(count: number, n: number): number {
@@ -115,8 +129,19 @@ function angularProfile(t: Tally) {
   return { perSteradian, perSteradianStdErr, luminanceRelative, luminanceRelativeStdErr }
 }
 
-/** `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was kept). */
-export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode): TraceResult {
+/**
+ * `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was
+ * kept). `scenario`: needed for a thin-film source (thinfilm/result.ts: fractions of all dipole power, the exact
+ * flat companion, the thin-film block); ignored otherwise.
+ */
+export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode, scenario?: Scenario): TraceResult {
+  const r = summarizeCounts(t, seed, fresnel)
+  // tallies stored before the stack slot existed are one slot shorter: no stack-absorbed rays
+  if (scenario?.emitter.thinFilm !== undefined) return applyThinFilm(r, scenario, t.device[T_STACK_ABSORBED] ?? 0)
+  return r
+}
+
+function summarizeCounts(t: RunTallies, seed: number, fresnel?: FresnelMode): TraceResult {
   const d = t.device
   const n = d[T_RAYS]!
   const ext = n > 0 ? d[T_EXTRACTED]! / n : 0
