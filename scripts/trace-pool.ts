@@ -90,5 +90,5 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, sc), tallies: total }
 }

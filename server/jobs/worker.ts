@@ -6,7 +6,7 @@
 import { hostname } from 'node:os'
 import type pg from 'pg'
 import type { Piscina } from 'piscina'
-import { createTally, mergeRunTallies, summarize, TALLY_LENGTH, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
+import { createTally, mergeRunTallies, summarize, summaryScenario, TALLY_LENGTH, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { fresnelModeOf } from '../../shared/types/scenario'
 import { usePool } from '../utils/db'
@@ -108,7 +108,7 @@ export async function commitBatch(cellId: string, batchIndex: number, tallies: R
     let finished = false
     let addedRays = 0
     if (remaining === 0) {
-      const result = summarize(stored, Number(cell.seed), fresnelModeOf(cell.scenario))
+      const result = summarize(stored, Number(cell.seed), fresnelModeOf(cell.scenario), summaryScenario(cell.scenario))
       const target = run.target_std_err as number | null
       const cap = run.ray_cap === null ? null : Number(run.ray_cap)
       if (target !== null && cap !== null && result.extractionStdErr > target && raysDone < cap) {

@@ -4,7 +4,7 @@ import { and, asc, desc, eq } from 'drizzle-orm'
 import { createError, type H3Event } from 'h3'
 import type { User } from 'lucia'
 import { memberships, projects, runCells, runs, type Project, type Role, type Run } from '../db/schema'
-import { summarize, type RunTallies } from '../../shared/optics'
+import { summarize, summaryScenario, type RunTallies } from '../../shared/optics'
 import { fresnelModeOf } from '../../shared/types/scenario'
 import { createRun, RunRequestError, tallyFromBytes, type CreateRunInput } from '../jobs/runs'
 import { requireDesignRole } from './access'
@@ -88,5 +88,5 @@ export async function cellResult(runId: string, cellIndex: number) {
   const { deviceTally, planarTally, ...rest } = cell
   const device = tallyFromBytes(deviceTally)
   const tallies: RunTallies | null = device ? { device, planar: tallyFromBytes(planarTally) } : null
-  return { cell: rest, result: tallies ? summarize(tallies, cell.seed, fresnelModeOf(cell.scenario)) : null }
+  return { cell: rest, result: tallies ? summarize(tallies, cell.seed, fresnelModeOf(cell.scenario), summaryScenario(cell.scenario)) : null }
 }

@@ -7,9 +7,20 @@ import { z } from 'zod'
 import { stripBidiControls } from './limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
+import { MAX_THIN_FILM_LAYERS } from './thin-film'
+
+type LayerThicknessAxis = `emitter.thinFilm.layers[${number}].thicknessNm`
+
+/** The OLED stack's layer thicknesses (layers counted from the glass; the path indexes from 0). */
+const LAYER_THICKNESS_AXES = Object.fromEntries(Array.from({ length: MAX_THIN_FILM_LAYERS }, (_, i) => [
+  `emitter.thinFilm.layers[${i}].thicknessNm`, { label: `Stack layer ${i + 1} thickness`, unit: 'nm' },
+])) as Record<LayerThicknessAxis, { label: string; unit: string }>
 
 /** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
 export const AXIS_PARAMETERS = {
+  ...LAYER_THICKNESS_AXES,
+  'emitter.thinFilm.emitterPositionNm': { label: 'Emitter position in the emitting layer', unit: 'nm' },
+  'emitter.thinFilm.horizontalDipoleFraction': { label: 'Horizontal dipole fraction', unit: '' },
   'emitter.index': { label: 'Emitter index', unit: '' },
   'emitter.source.radiusUm': { label: 'Source disc radius', unit: 'µm' },
   'emitter.source.widthUm': { label: 'Pixel width', unit: 'µm' },
@@ -32,6 +43,8 @@ export const AXIS_PARAMETERS = {
 
 export type AxisParameter = keyof typeof AXIS_PARAMETERS
 const axisParameterNames = Object.keys(AXIS_PARAMETERS) as [AxisParameter, ...AxisParameter[]]
+/** `layers[3]` in an axis path: the array field and the index. */
+const INDEXED = /^(\w+)\[(\d+)\]$/
 
 /** Largest number of values on one axis, and of cells in one sweep. */
 export const MAX_AXIS_STEPS = 50
@@ -123,7 +136,9 @@ export type SweepCell =
 function setPath(target: Record<string, unknown>, path: string[], value: number): boolean {
   let o: Record<string, unknown> = target
   for (let i = 0; i < path.length - 1; i++) {
-    const next = o[path[i]!]
+    const m = INDEXED.exec(path[i]!)
+    let next = o[m ? m[1]! : path[i]!]
+    if (m) next = Array.isArray(next) ? next[Number(m[2])] : undefined
     if (next === null || typeof next !== 'object') return false
     o = next as Record<string, unknown>
   }
@@ -157,6 +172,17 @@ export function axisProblems(base: Scenario, axes: SweepAxis[]): string[] {
     }
     if ((a.parameter === 'emitter.source.widthUm' || a.parameter === 'emitter.source.heightUm') && src.shape !== 'rectangle') {
       problems.push(`axes[${i}].parameter ${a.parameter} needs a rectangle source, but the design's source is ${src.shape}`)
+    }
+    const tf = base.emitter.thinFilm
+    if (a.parameter.startsWith('emitter.thinFilm.') && tf === undefined) {
+      problems.push(`axes[${i}].parameter ${a.parameter} needs an OLED stack (emitter.thinFilm), but the design uses the sheet emitter`)
+    }
+    const layer = /^emitter\.thinFilm\.layers\[(\d+)\]/.exec(a.parameter)
+    if (layer && tf && Number(layer[1]) >= tf.layers.length) {
+      problems.push(`axes[${i}].parameter ${a.parameter}: the stack has ${tf.layers.length} layers (layers[0] to layers[${tf.layers.length - 1}])`)
+    }
+    if (tf && (a.parameter.startsWith('reflector.') || a.parameter === 'emitter.index')) {
+      problems.push(`axes[${i}].parameter ${a.parameter} does not apply with an OLED stack: ${a.parameter === 'emitter.index' ? 'the emitter index is the emitting layer\'s' : 'the stack itself reflects'}`)
     }
     if (a.parameter === 'lensArray.conicConstant' && base.lensArray && base.lensArray.shape !== 'conic') {
       problems.push(`axes[${i}].parameter lensArray.conicConstant needs conic caps, but the design uses ${base.lensArray.shape}`)

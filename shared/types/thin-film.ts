@@ -42,7 +42,7 @@ export const thinFilmSchema = z
       return
     }
     if (emitting.length > 1) {
-      ctx.addIssue({ code: 'custom', path: ['layers', emitting[1]!, 'emitting'], message: `two emitting layers (layers ${emitting.join(' and ')}): mark exactly one layer as emitting` })
+      ctx.addIssue({ code: 'custom', path: ['layers', emitting[1]!, 'emitting'], message: `${emitting.length} emitting layers (layers ${emitting.map((i) => i + 1).join(', ')}, counted from the glass): mark exactly one layer as emitting` })
       return
     }
     const e = tf.layers[emitting[0]!]!

@@ -11,9 +11,9 @@
 // ray wavelength density is ∝ S·F·G and every traced fraction is scaled by G = ΣS·F·G/ΣS·F to become a fraction of
 // all dipole power. Glass angles θ from the normal in rad; wavelengths nm.
 //
-// Packed block (scene[S_THINFILM_OFFSET]): [W nodes, λ0 nm, Δλ nm, A angle cells, μ_0..μ_A (μ_k = cos(k·90°/A)),
-// then per node: p_s (probability that a ray is s-polarised), cdf_s[0..A], cdf_p[0..A], Re r_s, Im r_s, Re r_p,
-// Im r_p [0..A each]]. Within a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a
+// Packed block (scene[S_THINFILM_OFFSET]): [W nodes, λ0 nm, Δλ nm, A emission cells, RA reflection cells,
+// μ_0..μ_A (μ_k = cos(k·90°/A)), then per node: p_s (probability that a ray is s-polarised), cdf_s[0..A],
+// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at θ_k = k·90°/RA]]. Within a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a
 // 0.35° cell; the exact answer in flat.ts integrates the unbinned power, and the two agree to ~1e-5).
 import { DEFAULT_WAVELENGTH_NM, indexAt, spectrumRangeNm, type Scenario } from '../../types/scenario'
 import type { ThinFilm } from '../../types/thin-film'
@@ -22,12 +22,17 @@ import { glassAngular, thinFilmAt, type ThinFilmPoint } from './dipole'
 import { airy, prepareStack, setAdmittance, setKappa } from './stack'
 import { hash53 } from './table'
 
-/** Glass-angle cells over 0–90° (0.35° each). */
+/** Glass-angle cells over 0–90° of the emission tables (0.35° each). */
 export const TF_ANGLE_CELLS = 256
+/**
+ * Glass-angle cells of the stack's reflection tables (0.088° each): r(θ) turns by up to ~0.1 rad per degree in a
+ * 200 nm stack, and linear interpolation of the complex r loses |r|² ∝ (Δφ)²/8 per cell, ~1e-5 here.
+ */
+export const TF_REFLECTION_CELLS = 1024
 /** Largest spacing of the wavelength nodes (nm): the stack's response changes over tens of nm. */
 export const TF_STEP_NM = 5
-const TF_HEADER = 4
-const nodeLength = (A: number) => 1 + 6 * (A + 1)
+const TF_HEADER = 5
+const nodeLength = (A: number, RA: number) => 1 + 2 * (A + 1) + 4 * (RA + 1)
 
 export interface ThinFilmNode {
   wavelengthNm: number
@@ -106,10 +111,10 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
   const tf = sc.emitter.thinFilm
   if (tf === undefined) throw new Error('the scenario has no thin-film stack')
   const lams = thinFilmWavelengths(sc)
-  const W = lams.length, A = TF_ANGLE_CELLS
-  const NL = nodeLength(A)
+  const W = lams.length, A = TF_ANGLE_CELLS, RA = TF_REFLECTION_CELLS
+  const NL = nodeLength(A, RA)
   const block = new Float64Array(TF_HEADER + (A + 1) + W * NL)
-  block[0] = W; block[1] = lams[0]!; block[2] = W > 1 ? lams[1]! - lams[0]! : 0; block[3] = A
+  block[0] = W; block[1] = lams[0]!; block[2] = W > 1 ? lams[1]! - lams[0]! : 0; block[3] = A; block[4] = RA
   const angles = new Float64Array(A + 1)
   for (let k = 0; k <= A; k++) {
     angles[k] = (k * (Math.PI / 2)) / A
@@ -158,14 +163,14 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
     // the stack's amplitude reflection seen from the glass, s and p
     const S = prepareStack(tfl, glassIndex, lam)
     const r = base + 1 + 2 * (A + 1)
-    for (let k = 0; k <= A; k++) {
-      setKappa(S, glassIndex * Math.sin(angles[k]!))
+    for (let k = 0; k <= RA; k++) {
+      setKappa(S, glassIndex * Math.sin((k * (Math.PI / 2)) / RA))
       setAdmittance(S, false)
       airy(S, S.M - 1, 0, rt, 0)
-      block[r + k] = rt[0]!; block[r + (A + 1) + k] = rt[1]!
+      block[r + k] = rt[0]!; block[r + (RA + 1) + k] = rt[1]!
       setAdmittance(S, true)
       airy(S, S.M - 1, 0, rt, 0)
-      block[r + 2 * (A + 1) + k] = rt[0]!; block[r + 3 * (A + 1) + k] = rt[1]!
+      block[r + 2 * (RA + 1) + k] = rt[0]!; block[r + 3 * (RA + 1) + k] = rt[1]!
     }
     const sf = spectrumWeight[i]! * F
     sumSF += sf; sumSFG += sf * glass
@@ -182,7 +187,7 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
  */
 export function sampleThinFilmLaunch(scene: Float64Array, at: number, node: number, uPol: number, uTheta: number, uPhi: number, out: Float64Array): number {
   const A = scene[at + 3]!
-  const base = at + TF_HEADER + (A + 1) + node * nodeLength(A)
+  const base = at + TF_HEADER + (A + 1) + node * nodeLength(A, scene[at + 4]!)
   const isP = uPol < scene[base]! ? 0 : 1
   const c = base + 1 + isP * (A + 1)
   let lo = 0, hi = A
@@ -204,13 +209,13 @@ export function sampleThinFilmLaunch(scene: Float64Array, at: number, node: numb
  * grid angles): out = [Re r_s, Im r_s, Re r_p, Im r_p].
  */
 export function stackCoefficients(scene: Float64Array, at: number, node: number, cosI: number, out: Float64Array): void {
-  const A = scene[at + 3]!
-  const x = Math.acos(cosI > 1 ? 1 : cosI) * (A / (Math.PI / 2))
+  const A = scene[at + 3]!, RA = scene[at + 4]!
+  const x = Math.acos(cosI > 1 ? 1 : cosI) * (RA / (Math.PI / 2))
   let k = x | 0
-  if (k > A - 1) k = A - 1
+  if (k > RA - 1) k = RA - 1
   const f = x - k
-  const r = at + TF_HEADER + (A + 1) + node * nodeLength(A) + 1 + 2 * (A + 1)
-  const n = A + 1
+  const r = at + TF_HEADER + (A + 1) + node * nodeLength(A, RA) + 1 + 2 * (A + 1)
+  const n = RA + 1
   let q = r + k, v = scene[q]!
   out[0] = v + f * (scene[q + 1]! - v)
   q += n; v = scene[q]!
