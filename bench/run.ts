@@ -4,7 +4,7 @@
 // Usage: npm run bench -- [--rays N] [name ...]
 import { availableParallelism, cpus, loadavg } from 'node:os'
 import { scenarioSchema } from '../shared/types/scenario'
-import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
+import { createTally, mergeRunTallies, packScene, planChunks, prepareRun, traceChunk, traceRange } from '../shared/optics'
 import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
 
@@ -48,4 +48,19 @@ for (const name of selected) {
   console.log(`${name.padEnd(30)} in-process (tsx, unbundled) ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
 }
 for (const p of pools.values()) await p.destroy()
+// Thin-film source against the sheet emitter under the same film: device rays only (traceRange, one thread,
+// in-process), since a thin-film run traces no companion rays. Target: ratio ≥ 0.8.
+const devicePairs: Array<[string, string]> = [['hex-hemisphere-thin-film-polarized', 'hex-hemisphere-close-packed-polarized'], ['hex-hemisphere-thin-film', 'hex-hemisphere-close-packed']]
+function deviceRate(name: string): number {
+  const scene = packScene(scenarioSchema.parse(benchScenarios[name]!))
+  traceRange(scene, 0, 50_000, 99, createTally())
+  const t0 = performance.now()
+  traceRange(scene, 0, rays, 1, createTally())
+  return rays / ((performance.now() - t0) / 1000)
+}
+for (const [tf, sheet] of devicePairs) {
+  if (!selected.includes(tf) || !selected.includes(sheet)) continue
+  const a = deviceRate(tf), b = deviceRate(sheet)
+  console.log(`device rays only: ${tf} ${fmt(a)} rays/s, ${sheet} ${fmt(b)} rays/s — thin-film / sheet ×${(a / b).toFixed(2)} (target ≥ 0.8)`)
+}
 console.log(`load average (1 min) at the end: ${loadavg()[0]!.toFixed(2)} on ${all} cores — figures are depressed when it exceeds ~0.3`)

@@ -3,7 +3,9 @@
 // lands here first, then in the fused loop (tracer.ts), and tests/unit/optics/model-equality.test.ts proves the
 // two give bit-identical tallies (the same draws from the random stream in the same order, the same arithmetic).
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
-// top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts.
+// top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts. With a thin-film source
+// (thinfilm/source.ts) rays start in the substrate at z = 0 and the OLED stack takes the place of the emitter layer
+// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed.
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
 import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, linearPolarizationIn, metalReflect, pin, randomPolarization, stackReflectsIn } from './crossings'
 import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
@@ -201,7 +203,7 @@ export function emitterStep(ray: Ray, st: Stack): number {
 
 /**
  * Substrate, face to face (z is 0 or t on entry). Beer–Lambert on the way. Bottom face: back into the emitter
- * layer (TIR or Fresnel: up again). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
+ * layer (TIR or Fresnel: up again), or with a thin-film source the stack (stackStep). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
  * material (an interface only when the indices differ); else the flat land into air (with no lens array that is
  * the exit; in the planar device with a specular reflector a TIR ray can never escape: trapped).
  */

@@ -11,6 +11,9 @@
 // rays (the batch's share): once it is spent, each ray left is cut short and counted unresolved too, so the work of
 // one call is bounded whatever the geometry, and decided by the ray stream alone (never by the clock). Positions are wrapped to the nearest lattice site
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
+// Thin-film source (scene[S_THINFILM_OFFSET] > 0): the launch draws the wavelength first, then polarisation, μ and φ
+// from the stack's emission into the glass, and the ray starts in the substrate going up; at the bottom face the
+// stack reflects with its own r_s, r_p or absorbs (stackAbsorbed), as steps.ts stackStep.
 // This is the fused loop, kept for speed: the readable model of the same life is steps.ts (one function per medium,
 // run by model.ts), and tests/unit/optics/model-equality.test.ts proves the two give bit-identical tallies. Physics
 // lands in the readable model first, then here (shared/optics/README.md).

@@ -2,7 +2,7 @@
 // editor form, the HTTP body, the CLI file and the worker task. Lengths in µm, absorption in 1/mm, angles in
 // degrees (this is an edge of the system; the core converts to radians when it packs the scene).
 import { z } from 'zod'
-import { thinFilmSchema } from './thin-film'
+import { materialAt, thinFilmSchema, type OpticalMaterial } from './thin-film'
 
 /** Tabulated emitter profile: [thetaDeg, relativeIntensity] rows, radiant intensity per steradian in the emitter. */
 const profileTableSchema = z
@@ -282,6 +282,17 @@ export const scenarioSchema = z
       ctx.addIssue({ code: 'custom', path: ['emitter', 'index'], message: 'is required for the sheet emitter (with a thin-film stack it comes from the emitting layer)' })
     }
     const range = spectrumRangeNm(s.emitter.spectrum)
+    const tf = s.emitter.thinFilm
+    if (tf) {
+      // n,k tables of the stack must cover the wavelengths traced
+      const cover = (m: OpticalMaterial, path: Array<string | number>) => {
+        if (!m.table) return
+        const t0 = m.table[0]![0], t1 = m.table[m.table.length - 1]![0]
+        if (range[0] < t0 || range[1] > t1) ctx.addIssue({ code: 'custom', path: [...path, 'table'], message: `the n,k table covers ${t0}–${t1} nm but the spectrum spans ${round4(range[0])}–${round4(range[1])} nm` })
+      }
+      tf.layers.forEach((l, i) => cover(l.material, ['emitter', 'thinFilm', 'layers', i, 'material']))
+      cover(tf.cathode.material, ['emitter', 'thinFilm', 'cathode', 'material'])
+    }
     checkIndexOverSpectrum(s.emitter.index, ['emitter', 'index'], range, ctx)
     checkIndexOverSpectrum(s.substrate.index, ['substrate', 'index'], range, ctx)
     if (s.lensArray) checkIndexOverSpectrum(s.lensArray.index, ['lensArray', 'index'], range, ctx)
@@ -289,7 +300,7 @@ export const scenarioSchema = z
   .transform((s) => {
     const tf = s.emitter.thinFilm
     // with a stack the emitter index is the emitting layer's (validated above: exactly one)
-    const index: IndexModel = tf ? tf.layers.find((l) => l.emitting)!.material.n : s.emitter.index!
+    const index: IndexModel = tf ? materialAt(tf.layers.find((l) => l.emitting)!.material, DEFAULT_WAVELENGTH_NM).n : s.emitter.index!
     return {
       ...s,
       emitter: { ...s.emitter, index },
@@ -331,6 +342,7 @@ const FIELD_WORDS: Record<string, [string, string]> = {
   'emitter.thinFilm.cathode.material': ['Cathode material', ''],
   'emitter.thinFilm.cathode.material.n': ['Cathode n', ''],
   'emitter.thinFilm.cathode.material.k': ['Cathode k', ''],
+  'emitter.thinFilm.cathode.material.table': ['Cathode n,k table', ''],
   'emitter.thinFilm.emitterPositionNm': ['Emitter position in the emitting layer', 'nm'],
   'emitter.thinFilm.horizontalDipoleFraction': ['Horizontal dipole fraction', ''],
   'emitter.thinFilm.radiativeEfficiency': ['Radiative efficiency q', ''],
@@ -361,7 +373,7 @@ const FIELD_WORDS: Record<string, [string, string]> = {
 
 /** Column names of the tables a scenario holds, by the table's field (index tables: wavelength, n, k). */
 function tableColumns(key: string): readonly string[] {
-  if (key.endsWith('.index')) return ['wavelength (nm)', 'n', 'k']
+  if (key.endsWith('.index') || key.endsWith('.material')) return ['wavelength (nm)', 'n', 'k']
   if (key === 'emitter.spectrum') return ['wavelength (nm)', 'relative power']
   if (key === 'emitter.angularProfile') return ['θ (°)', 'relative intensity']
   if (key === 'lensArray.profile') return ['r (µm)', 'height (µm)']
@@ -375,7 +387,7 @@ const PART_WORDS: Record<string, string> = { sellmeier: 'Sellmeier formula', cau
  * row 1, k" or "Substrate index Sellmeier formula B".
  */
 const LAYER_PART_WORDS: Record<string, [string, string]> = {
-  thicknessNm: ['thickness', 'nm'], 'material.n': ['n', ''], 'material.k': ['k', ''], material: ['material', ''],
+  thicknessNm: ['thickness', 'nm'], 'material.n': ['n', ''], 'material.k': ['k', ''], 'material.table': ['n,k table', ''], material: ['material', ''],
   emitting: ['emitting mark', ''], name: ['name', ''],
 }
 
@@ -383,6 +395,10 @@ function fieldWords(path: ReadonlyArray<PropertyKey>): [string, string] {
   // a row of the OLED stack: "Stack layer 4 thickness" (layers counted from the glass, 1 first)
   if (path.length >= 4 && path[0] === 'emitter' && path[1] === 'thinFilm' && path[2] === 'layers' && typeof path[3] === 'number') {
     const rest = path.slice(4).map(String).join('.')
+    if (path[4] === 'material' && path[5] === 'table' && typeof path[6] === 'number') {
+      const col = typeof path[7] === 'number' ? `, ${['wavelength (nm)', 'n', 'k'][path[7]] ?? `column ${path[7] + 1}`}` : ''
+      return [`Stack layer ${path[3] + 1} n,k table row ${path[6] + 1}${col}`, '']
+    }
     const w = LAYER_PART_WORDS[rest]
     return [`Stack layer ${path[3] + 1}${rest === '' ? '' : ` ${w ? w[0] : rest}`}`, w ? w[1] : '']
   }

@@ -8,6 +8,7 @@
 // K(u) and the glass emission at the spectrum's peak.
 import { DEFAULT_WAVELENGTH_NM, indexAt, type Scenario } from '../../types/scenario'
 import type { Losses, ThinFilmResult, TraceResult } from '../../types/result'
+import { materialAt } from '../../types/thin-film'
 import { dissipationSpectrum, glassAngular, thinFilmAt } from './dipole'
 import { FLAT_BINS, thinFilmFlat, type ThinFilmFlat } from './flat'
 import { thinFilmSource, type ThinFilmSource } from './source'
@@ -62,7 +63,7 @@ export function thinFilmExact(sc: Scenario): ThinFilmExact {
   const K = dissipationSpectrum(tf, lam, { glassIndex }, u)
   const thetaDeg = Array.from({ length: 91 }, (_, i) => i)
   const g = glassAngular(tf, lam, { glassIndex }, thetaDeg.map((d) => (d * Math.PI) / 180), point.purcell.mixed)
-  const ne = tf.layers.find((l) => l.emitting)!.material.n
+  const ne = materialAt(tf.layers.find((l) => l.emitting)!.material, lam).n
   const out: ThinFilmExact = {
     source, flat, waveguided, evanescent, absorbed,
     block: {

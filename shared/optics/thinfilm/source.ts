@@ -76,11 +76,6 @@ export function thinFilmNode(scene: Float64Array, at: number, wavelengthNm: numb
   return i
 }
 
-/** The stack resolved to plain n + ik at one wavelength (materials are constant n, k for now). */
-function stackAt(tf: ThinFilm, _wavelengthNm: number): ThinFilm {
-  return tf
-}
-
 const cache = new Map<string, ThinFilmSource>()
 /** Sources kept per process (a 49-node spectrum is ~0.6 MB): enough for the cells of a sweep sharing a stack. */
 const CACHE_ENTRIES = 16
@@ -138,7 +133,7 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
   let sumSF = 0, sumSFG = 0
   for (let i = 0; i < W; i++) {
     const lam = lams[i]!
-    const tfl = stackAt(tf, lam)
+    const tfl = tf // materials are read at λ by prepareStack (stack.ts)
     const glassIndex = indexAt(sc.substrate.index, lam)
     const optics = { glassIndex }
     const point = thinFilmAt(tfl, lam, optics)

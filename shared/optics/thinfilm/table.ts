@@ -41,8 +41,8 @@ export function hash53(str: string): string {
 /** Stable key: fields listed explicitly (names are labels and do not change the optics). */
 export function thinFilmCacheKey(tf: ThinFilm, wavelengthsNm: readonly number[], optics: ThinFilmOptics, angleCount = DEFAULT_GLASS_ANGLE_COUNT): string {
   const canon = {
-    l: tf.layers.map((l) => [l.thicknessNm, l.material.n, l.material.k, l.emitting ? 1 : 0]),
-    c: [tf.cathode.material.n, tf.cathode.material.k],
+    l: tf.layers.map((l) => [l.thicknessNm, l.material.table ?? [l.material.n, l.material.k], l.emitting ? 1 : 0]),
+    c: tf.cathode.material.table ?? [tf.cathode.material.n, tf.cathode.material.k],
     z: tf.emitterPositionNm, h: tf.horizontalDipoleFraction, q: tf.radiativeEfficiency,
     g: [optics.glassIndex, optics.glassThicknessUm ?? 0, optics.glassAbsorptionPerMm ?? 0, optics.outsideIndex ?? 1],
     w: wavelengthsNm, a: angleCount,
