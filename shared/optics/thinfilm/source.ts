@@ -13,7 +13,7 @@
 //
 // Packed block (scene[S_THINFILM_OFFSET]): [W nodes, λ0 nm, Δλ nm, A emission cells, RA reflection cells,
 // μ_0..μ_A (μ_k = cos(k·90°/A)), then per node: p_s (probability that a ray is s-polarised), cdf_s[0..A],
-// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at θ_k = k·90°/RA]]. Within a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a
+// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at μ_k = k/RA]]. Within a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a
 // 0.35° cell; the exact answer in flat.ts integrates the unbinned power, and the two agree to ~1e-5).
 import { DEFAULT_WAVELENGTH_NM, indexAt, spectrumRangeNm, type Scenario } from '../../types/scenario'
 import type { ThinFilm } from '../../types/thin-film'
@@ -25,8 +25,10 @@ import { hash53 } from './table'
 /** Glass-angle cells over 0–90° of the emission tables (0.35° each). */
 export const TF_ANGLE_CELLS = 256
 /**
- * Glass-angle cells of the stack's reflection tables (0.088° each): r(θ) turns by up to ~0.1 rad per degree in a
- * 200 nm stack, and linear interpolation of the complex r loses |r|² ∝ (Δφ)²/8 per cell, ~1e-5 here.
+ * Cells of the stack's reflection tables, uniform in μ = cos θ over [0, 1]: r depends on the glass angle through
+ * κ² = n_g²(1 − μ²) and the glass admittance n_g·μ, both smooth in μ at both ends, and a ray's μ is its −dz (no acos
+ * per hit). r turns by up to ~0.1 rad per degree in a 200 nm stack; linear interpolation of the complex r loses
+ * |r|² ∝ (Δφ)²/8 per cell, ≲ 1e-5 with 1024 cells.
  */
 export const TF_REFLECTION_CELLS = 1024
 /** Largest spacing of the wavelength nodes (nm): the stack's response changes over tens of nm. */
@@ -159,7 +161,8 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
     const S = prepareStack(tfl, glassIndex, lam)
     const r = base + 1 + 2 * (A + 1)
     for (let k = 0; k <= RA; k++) {
-      setKappa(S, glassIndex * Math.sin((k * (Math.PI / 2)) / RA))
+      const mu = k / RA
+      setKappa(S, glassIndex * Math.sqrt(1 - mu * mu))
       setAdmittance(S, false)
       airy(S, S.M - 1, 0, rt, 0)
       block[r + k] = rt[0]!; block[r + (RA + 1) + k] = rt[1]!
@@ -200,12 +203,12 @@ export function sampleThinFilmLaunch(scene: Float64Array, at: number, node: numb
 }
 
 /**
- * The stack's amplitude reflection for a ray meeting it from the glass with cos θ = cosI (linear in θ between the
- * grid angles): out = [Re r_s, Im r_s, Re r_p, Im r_p].
+ * The stack's amplitude reflection for a ray meeting it from the glass with cos θ = cosI (linear in μ = cos θ
+ * between the grid points): out = [Re r_s, Im r_s, Re r_p, Im r_p].
  */
 export function stackCoefficients(scene: Float64Array, at: number, node: number, cosI: number, out: Float64Array): void {
   const A = scene[at + 3]!, RA = scene[at + 4]!
-  const x = Math.acos(cosI > 1 ? 1 : cosI) * (RA / (Math.PI / 2))
+  const x = (cosI > 1 ? 1 : cosI) * RA
   let k = x | 0
   if (k > RA - 1) k = RA - 1
   const f = x - k

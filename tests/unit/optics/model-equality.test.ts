@@ -2,7 +2,7 @@
 // bit-identical tallies — every slot, the θ–φ map included — on scenarios covering every emitter profile, cap
 // shape, Fresnel mode and source shape (plus absorption, a diffuse reflector, a lens index of its own, a square
 // lattice and an event limit that bites). A physics change made in one and not the other fails here.
-import { describe, expect, it } from 'vitest'
+import { describe, expect, it, vi } from 'vitest'
 import { createTally, packScene, traceRange, traceRangeModel, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED, THETA_BINS, PHI_BINS } from '../../../shared/optics'
 import { scenarioSchema, type ScenarioInput } from '../../../shared/types/scenario'
 import { REFERENCE_GREEN_STACK } from '../../../shared/types/thin-film'
@@ -60,6 +60,10 @@ const cases: Record<string, ScenarioInput> = {
   'planar, line spectrum 610 nm, Sellmeier substrate, diffuse': { ...stack, emitter: { ...stack.emitter, spectrum: { wavelengthNm: 610 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.4 }, substrate: { ...stack.substrate, index: bk7 }, lensArray: null },
   'equal indices everywhere, ideal mirror': { emitter: { index: 1.5, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 1, diffuseFraction: 0 }, substrate: { index: 1.5, thicknessUm: 20, absorptionPerMm: 0 }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } },
 }
+
+// the spectral thin-film cases tabulate their stack over ~50 wavelength nodes first (~0.5 s quiet, more when the
+// machine is shared)
+vi.setConfig({ testTimeout: 60_000 })
 
 function firstDifference(a: Float64Array, b: Float64Array): string {
   for (let i = 0; i < TALLY_LENGTH; i++) if (a[i] !== b[i]) return `slot ${i}: fused ${a[i]}, model ${b[i]}`
