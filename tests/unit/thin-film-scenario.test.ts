@@ -2,7 +2,7 @@
 // and conflicts get the trade-worded messages; thicknesses, position and orientation are sweep axes; the packed
 // scene carries the source tables, and the exact flat device agrees with the dipole module's own flat outcoupling.
 import { describe, expect, it } from 'vitest'
-import { packScene, S_REFLECTANCE, S_THINFILM_OFFSET } from '../../shared/optics'
+import { createTally, mergeRunTallies, packScene, prepareRun, S_REFLECTANCE, S_THINFILM_OFFSET, summarize, traceChunk, traceScenario, T_STACK_ABSORBED } from '../../shared/optics'
 import { prepareStack, stackReflectance, thinFilmAt } from '../../shared/optics/thinfilm'
 import { thinFilmFlat } from '../../shared/optics/thinfilm/flat'
 import { sampleThinFilmLaunch, stackCoefficients, thinFilmSource, thinFilmWavelengths } from '../../shared/optics/thinfilm/source'
@@ -159,5 +159,25 @@ describe('the exact flat device (thinfilm/flat.ts)', () => {
     const p = thinFilmAt(src.stack, 550, { glassIndex: 1.5, glassThicknessUm: 700, glassAbsorptionPerMm: 1 })
     expect(Math.abs(flat.extraction - (p.airS + p.airP))).toBeLessThan(1e-5)
     expect(flat.substrate).toBeGreaterThan(0.1)
+  })
+})
+
+describe('a thin-film run', () => {
+  const sc = scenarioSchema.parse({ ...base, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5 }, trace: { fresnel: 'polarized' } })
+  it('traces no companion rays for an extended source, and any chunking gives the same result (seed 3)', () => {
+    const run = prepareRun(sc)
+    expect(run.planar).toBeNull()
+    const whole = traceScenario(sc, { rays: 20_000, seed: 3 })
+    const parts = { device: createTally(), planar: null }
+    for (const [f, c] of [[0, 7_000], [7_000, 5_000], [12_000, 8_000]] as const) mergeRunTallies(parts, traceChunk(run, f, c, 3))
+    expect(parts.device[T_STACK_ABSORBED]!).toBeGreaterThan(0)
+    expect(summarize(parts, 3, 'polarized', sc)).toEqual(whole)
+  })
+  it('a disc pixel keeps a traced companion for its footprint tally; the planar block is still the exact one', () => {
+    const disc = scenarioSchema.parse({ ...sc, emitter: { ...sc.emitter, source: { shape: 'disc', radiusUm: 30 } } })
+    expect(prepareRun(disc).planar).not.toBeNull()
+    const r = traceScenario(disc, { rays: 5_000, seed: 4 })
+    expect(r.planar.method).toBe('quadrature')
+    expect(r.pixel).not.toBeNull()
   })
 })
