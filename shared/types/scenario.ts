@@ -275,6 +275,9 @@ export const scenarioSchema = z
     if (s.emitter.thinFilm !== undefined && s.reflector !== undefined) {
       ctx.addIssue({ code: 'custom', path: ['reflector'], message: 'must be left out with a thin-film stack: the stack reflects with its own coherent reflectance down to the cathode' })
     }
+    if (s.emitter.thinFilm !== undefined && typeof s.emitter.angularProfile === 'object') {
+      ctx.addIssue({ code: 'custom', path: ['emitter', 'angularProfile'], message: 'cannot be a table with a thin-film stack: the stack\'s own emission into the glass is traced (leave it isotropic)' })
+    }
     if (s.emitter.thinFilm === undefined && s.reflector === undefined) {
       ctx.addIssue({ code: 'custom', path: ['reflector'], message: 'is required for the sheet emitter (or describe the OLED stack in emitter.thinFilm)' })
     }

@@ -31,6 +31,7 @@ describe('emitter.thinFilm in the scenario', () => {
     expect(errorsOf({ ...base, reflector: { reflectance: 0.8 } })).toEqual(['Back reflector must be left out with a thin-film stack: the stack reflects with its own coherent reflectance down to the cathode'])
     expect(errorsOf({ emitter: { index: 1.7 }, substrate: base.substrate, lensArray: null })[0]).toMatch(/^Back reflector is required for the sheet emitter/)
     expect(errorsOf({ emitter: {}, reflector: { reflectance: 0.8 }, substrate: base.substrate, lensArray: null })[0]).toMatch(/^Emitter index is required for the sheet emitter/)
+    expect(errorsOf({ ...base, emitter: { thinFilm: REF, angularProfile: { table: [[0, 1], [90, 0]] } } })).toEqual(['Emission profile cannot be a table with a thin-film stack: the stack\'s own emission into the glass is traced (leave it isotropic)'])
   })
 
   it('names the field of every bad stack in the trade\'s words', () => {
