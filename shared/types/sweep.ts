@@ -9,16 +9,16 @@ import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geom
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
 import { MAX_THIN_FILM_LAYERS } from './thin-film'
 
-type LayerThicknessAxis = `emitter.thinFilm.layers[${number}].thicknessNm`
+/** 0 … MAX_THIN_FILM_LAYERS − 1 as literals, so the 30 layer axes are ordinary keys (no index signature). */
+type LayerIndex = 0 | 1 | 2 | 3 | 4 | 5 | 6 | 7 | 8 | 9 | 10 | 11 | 12 | 13 | 14 | 15 | 16 | 17 | 18 | 19 | 20 | 21 | 22 | 23 | 24 | 25 | 26 | 27 | 28 | 29
+type LayerThicknessAxis = `emitter.thinFilm.layers[${LayerIndex}].thicknessNm`
 
 /** The OLED stack's layer thicknesses (layers counted from the glass; the path indexes from 0). */
 const LAYER_THICKNESS_AXES = Object.fromEntries(Array.from({ length: MAX_THIN_FILM_LAYERS }, (_, i) => [
   `emitter.thinFilm.layers[${i}].thicknessNm`, { label: `Stack layer ${i + 1} thickness`, unit: 'nm' },
 ])) as Record<LayerThicknessAxis, { label: string; unit: string }>
 
-/** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
-export const AXIS_PARAMETERS = {
-  ...LAYER_THICKNESS_AXES,
+const NAMED_AXES = {
   'emitter.thinFilm.emitterPositionNm': { label: 'Emitter position in the emitting layer', unit: 'nm' },
   'emitter.thinFilm.horizontalDipoleFraction': { label: 'Horizontal dipole fraction', unit: '' },
   'emitter.index': { label: 'Emitter index', unit: '' },
@@ -40,6 +40,9 @@ export const AXIS_PARAMETERS = {
   /** Derived: sets the diameter at the cell's pitch. */
   'lensArray.fillFactor': { label: 'Fill factor', unit: '' },
 } as const
+
+/** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
+export const AXIS_PARAMETERS = { ...LAYER_THICKNESS_AXES, ...NAMED_AXES } as Record<LayerThicknessAxis, { label: string; unit: string }> & typeof NAMED_AXES
 
 export type AxisParameter = keyof typeof AXIS_PARAMETERS
 const axisParameterNames = Object.keys(AXIS_PARAMETERS) as [AxisParameter, ...AxisParameter[]]
