@@ -113,6 +113,19 @@ describe('dipole orientation and the cavity (reference green stack)', () => {
     expect(c.extraction - b.extraction).toBeGreaterThan(K4 * Math.hypot(c.extractionStdErr, b.extractionStdErr))
     record.etl = { 70: a.extraction, 150: b.extraction, 235: c.extraction }
     console.log(`traced flat η_air: ETL 70 nm ${f4(a.extraction)}, 150 nm ${f4(b.extraction)}, 235 nm ${f4(c.extraction)} (± ${f4(b.extractionStdErr)})`)
+  })
+
+  it('ETL thickness with and without the hemisphere film: both optima recorded, the film gains at every thickness (exact flat; traced film 40 000 rays each, seeds 61–68)', () => {
+    // The engineers' point (issue #14): the best ETL with a film need not be the flat device's best. Recorded only.
+    const etls = [40, 60, 80, 100, 200, 230, 260, 290]
+    const rows = etls.map((nm, i) => {
+      const r = traceScenario(oled({ tf: withEtl(nm), lens: hemispheres, thicknessUm: 100 }), { rays: 40_000, seed: 61 + i })
+      expect(r.extraction - r.planar.extraction).toBeGreaterThan(K4 * r.extractionStdErr)
+      return { nm, flat: r.planar.extraction, film: r.extraction, stdErr: r.extractionStdErr }
+    })
+    const best = (k: 'flat' | 'film') => rows.reduce((a, b) => (b[k] > a[k] ? b : a))
+    record.etlWithFilm = rows
+    console.log(`ETL scan (nm: flat → film ± σ): ${rows.map((r) => `${r.nm}: ${f4(r.flat)} → ${f4(r.film)} ± ${f4(r.stdErr)}`).join('; ')}; best flat ${best('flat').nm} nm, best with film ${best('film').nm} nm`)
     mkdirSync('test-output', { recursive: true })
     writeFileSync('test-output/thin-film-source.json', JSON.stringify(record, null, 2))
   })
