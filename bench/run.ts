@@ -6,7 +6,7 @@
 import { availableParallelism, cpus, loadavg } from 'node:os'
 import { parseArgs } from 'node:util'
 import { scenarioSchema } from '../shared/types/scenario'
-import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
+import { createTally, mergeRunTallies, packScene, planChunks, prepareRun, traceChunk, traceRange, T_EVENTS, T_WAVEGUIDED } from '../shared/optics'
 import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
 
@@ -47,4 +47,22 @@ for (const name of selected) {
   console.log(`${name.padEnd(30)} in-process (tsx, unbundled) ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
 }
 for (const p of pools.values()) await p.destroy()
+// Thin-film source against the sheet emitter under the same film: device rays only (traceRange, one thread,
+// in-process), since a thin-film run traces no companion rays. Target: ratio ≥ 0.8. Every thin-film ray has entered
+// the glass; many of the sheet emitter's rays end at their first encounter (totally reflected in the emitter layer),
+// so the sheet's waveguided share and both encounter counts are printed beside the ratio.
+const devicePairs: Array<[string, string]> = [['hex-hemisphere-thin-film-polarized', 'hex-hemisphere-close-packed-polarized'], ['hex-hemisphere-thin-film', 'hex-hemisphere-close-packed']]
+function deviceRate(name: string): { rate: number; waveguided: number; events: number } {
+  const scene = packScene(scenarioSchema.parse(benchScenarios[name]!))
+  traceRange(scene, 0, 50_000, 99, createTally())
+  const t = createTally()
+  const t0 = performance.now()
+  traceRange(scene, 0, rays, 1, t)
+  return { rate: rays / ((performance.now() - t0) / 1000), waveguided: t[T_WAVEGUIDED]! / rays, events: t[T_EVENTS]! / rays }
+}
+for (const [tf, sheet] of devicePairs) {
+  if (!selected.includes(tf) || !selected.includes(sheet)) continue
+  const a = deviceRate(tf), b = deviceRate(sheet)
+  console.log(`device rays only: ${tf} ${fmt(a.rate)} rays/s (${a.events.toFixed(2)} encounters/ray), ${sheet} ${fmt(b.rate)} rays/s (${b.events.toFixed(2)} encounters/ray, ${(100 * b.waveguided).toFixed(0)} % end waveguided in the emitter layer) — thin-film / sheet ×${(a.rate / b.rate).toFixed(2)} (target ≥ 0.8)`)
+}
 console.log(`load average (1 min) at the end: ${loadavg()[0]!.toFixed(2)} on ${all} cores — figures are depressed when it exceeds ~0.3`)

@@ -1,5 +1,6 @@
 // Named reference scenarios for the bench (and the profile script).
 import type { ScenarioInput } from '../shared/types/scenario'
+import { REFERENCE_GREEN_STACK } from '../shared/types/thin-film'
 
 const stack = {
   emitter: { index: 1.7, angularProfile: 'isotropic' as const, source: { shape: 'extended' as const } },
@@ -21,6 +22,16 @@ export const benchScenarios: Record<string, ScenarioInput> = {
     substrate: { ...stack.substrate, index: bk7 },
     lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: bk7 },
     trace: { fresnel: 'polarized' },
+  },
+  // The OLED stack as the source under the same film (its flat companion is exact: no companion rays are traced,
+  // so compare device rays with the device-only figures printed at the end, not with the lines above).
+  'hex-hemisphere-thin-film-polarized': {
+    emitter: { thinFilm: REFERENCE_GREEN_STACK, source: { shape: 'extended' } }, substrate: stack.substrate,
+    lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 }, trace: { fresnel: 'polarized' },
+  },
+  'hex-hemisphere-thin-film': {
+    emitter: { thinFilm: REFERENCE_GREEN_STACK, source: { shape: 'extended' } }, substrate: stack.substrate,
+    lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical', index: 1.5 },
   },
   'planar': { ...stack, lensArray: null },
   'planar-polarized': { ...stack, lensArray: null, trace: { fresnel: 'polarized' } },

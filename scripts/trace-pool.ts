@@ -79,5 +79,5 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   } finally {
     if (!opts.pool) await pool.destroy()
   }
-  return { result: summarize(total, opts.seed, sc.trace.fresnel, flat), tallies: total }
+  return { result: summarize(total, opts.seed, sc.trace.fresnel, flat, sc), tallies: total }
 }

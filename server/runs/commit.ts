@@ -6,10 +6,10 @@
 import { randomUUID } from 'node:crypto'
 import { and, count, eq, max, sql } from 'drizzle-orm'
 import type pg from 'pg'
-import { companionFor, createTally, mergeRunTallies, summarize, type RunTallies } from '../../shared/optics'
+import { createTally, mergeRunTallies, summarizeStored, type RunTallies } from '../../shared/optics'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { bestCellIndex, cellSummaryOf } from '../../shared/types/figures'
-import { fresnelModeOf, type Scenario } from '../../shared/types/scenario'
+import type { Scenario } from '../../shared/types/scenario'
 import { projects, runBatches, runCells, runs } from '../db/schema'
 import { useDb } from '../utils/db'
 import { batchJobs, enqueueInTransaction, withdrawJobs } from '../queue/job'
@@ -55,7 +55,7 @@ export function mergeIntoStored(stored: { deviceTally: Buffer | null; planarTall
  */
 async function finishCell(tx: TxDb, client: pg.PoolClient, cellId: string,
   l: Locked, tallies: RunTallies, raysDone: number): Promise<{ finished: boolean; addedRays: number }> {
-  const result = summarize(tallies, l.cell.seed, fresnelModeOf(l.cell.scenario), companionFor(l.cell.scenario, tallies))
+  const result = summarizeStored(tallies, l.cell.seed, l.cell.scenario)
   const verdict = nextRound({ raysDone, stdErr: result.extractionStdErr, targetStdErr: l.run.targetStdErr, rayCap: l.run.rayCap })
   if (!verdict.done) {
     const [{ m } = { m: -1 }] = await tx.select({ m: max(runBatches.batchIndex) }).from(runBatches).where(eq(runBatches.cellId, cellId))

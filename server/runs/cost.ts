@@ -4,6 +4,7 @@
 // rays already hit maxEvents, is accepted with a warning kept on the run.
 import { prepareRun, traceChunk, T_EVENTS, T_RAYS, T_UNRESOLVED } from '../../shared/optics'
 import type { Scenario } from '../../shared/types/scenario'
+import { thinFilmPeakNm } from '../../shared/optics/thinfilm/result'
 
 export const PILOT_RAYS = 256
 /** Sweeps: at most this many cells are piloted (evenly spread over the grid, first and last included). */
@@ -37,7 +38,12 @@ export function pilotCells(n: number, max = PILOT_CELLS): number[] {
 
 /** Pilot trace of one scenario; `streamBudget` = encounters each stream may spend per ray on average in a batch. */
 export function pilotCost(scenario: Scenario, seed: number, streamBudget: number, cellIndex = 0): CellCost {
-  const run = prepareRun(scenario)
+  // An OLED stack with a spectrum is piloted at its peak wavelength alone: the encounters per ray hardly depend on
+  // λ, and tabulating every wavelength node of up to 16 cells would hold the request for seconds.
+  const pilot = scenario.emitter.thinFilm && scenario.emitter.spectrum
+    ? { ...scenario, emitter: { ...scenario.emitter, spectrum: { wavelengthNm: thinFilmPeakNm(scenario) } } }
+    : scenario
+  const run = prepareRun(pilot)
   const budget = Math.ceil(PILOT_RAYS * streamBudget)
   const t = traceChunk(run, 0, PILOT_RAYS, seed, undefined, budget)
   const dev = t.device[T_EVENTS]!, pl = t.planar?.[T_EVENTS] ?? 0

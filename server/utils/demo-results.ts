@@ -6,7 +6,7 @@
 // cell), inserted only when missing, so loading twice changes nothing.
 import { randomUUID } from 'node:crypto'
 import { and, eq, sql } from 'drizzle-orm'
-import { companionFor, createTally, mergeRunTallies, planChunks, prepareRun, summarize, traceChunk, type RunTallies } from '../../shared/optics'
+import { createTally, mergeRunTallies, planChunks, prepareRun, summarizeStored, traceChunk, type RunTallies } from '../../shared/optics'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { scenarioSchema } from '../../shared/types/scenario'
 import { cellSeed, expandSweep, type SweepAxis } from '../../shared/types/sweep'
@@ -81,7 +81,7 @@ async function ensureRun(db: Db, projectId: string, spec: { name: string; design
     if (!c.feasible) return { cell: c, tallies: null, summary: null, seed: cellSeed(spec.seed, c.index) }
     const seed = kind === 'single' ? spec.seed : cellSeed(spec.seed, c.index)
     const tallies = traceCell(c.scenario, spec.rays, seed)
-    return { cell: c, tallies, summary: cellSummaryOf(summarize(tallies, seed, undefined, companionFor(c.scenario, tallies))), seed }
+    return { cell: c, tallies, summary: cellSummaryOf(summarizeStored(tallies, seed, c.scenario)), seed }
   })
   const figure = 'enhancement'
   const best = bestCellIndex(traced.map((t) => ({ cellIndex: t.cell.index, status: t.summary ? 'done' as const : 'infeasible' as const, summary: t.summary })), figure)

@@ -4,8 +4,7 @@ import { and, asc, desc, eq } from 'drizzle-orm'
 import { createError, type H3Event } from 'h3'
 import type { User } from 'lucia'
 import { memberships, projects, runCells, runs, type Project, type Role, type Run } from '../db/schema'
-import { companionFor, summarize, type RunTallies } from '../../shared/optics'
-import { fresnelModeOf } from '../../shared/types/scenario'
+import { summarizeStored, type RunTallies } from '../../shared/optics'
 import { createRun, type CreateRunInput } from '../runs/create'
 import { tallyFromBytes } from '../runs/db'
 import { RunRequestError } from '../runs/plan'
@@ -94,5 +93,5 @@ export async function cellResult(runId: string, cellIndex: number) {
   const { deviceTally, planarTally, ...rest } = cell
   const device = tallyFromBytes(deviceTally)
   const tallies: RunTallies | null = device ? { device, planar: tallyFromBytes(planarTally) } : null
-  return { cell: rest, result: tallies ? summarize(tallies, cell.seed, fresnelModeOf(cell.scenario), companionFor(cell.scenario, tallies)) : null }
+  return { cell: rest, result: tallies ? summarizeStored(tallies, cell.seed, cell.scenario) : null }
 }

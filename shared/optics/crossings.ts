@@ -277,3 +277,32 @@ export function randomPolarizationIn(f: Float64Array): void {
   const psi = 2 * Math.PI * pin[10]!
   compose(f, Math.cos(psi), 0, Math.sin(psi), 0, kx, ky, kz)
 }
+
+/**
+ * A linear polarisation for a ray along k leaving the thin-film stack: pure s (pin[10] = 0; along k × z) or pure p
+ * (pin[10] = 1; s × k), the two eigenstates the stack emits into the glass.
+ */
+export function linearPolarizationIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
+  f[0] = 0; f[1] = 0; f[2] = 0; f[3] = 0; f[4] = 0; f[5] = 0
+  project(f, kx, ky, kz, 0, 0, 1)
+  const p = pin[10]!
+  compose(f, 1 - p, 0, p, 0, kx, ky, kz)
+}
+
+/**
+ * The thin-film stack met from the glass (normal −z, into the stack), polarised: reflect when
+ * u < |r_s|²|Es|² + |r_p|²|Ep|² with the stack's complex coefficients; f becomes r_s·Es·s + r_p·Ep·p_r
+ * renormalised (the caller mirrors the ray), else the light is absorbed in the stack (false, f unchanged).
+ * Inputs in pin: k (0–2), Re r_s, Im r_s, Re r_p, Im r_p (3–6), u (10).
+ */
+export function stackReflectsIn(f: Float64Array): boolean {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
+  const rsRe = pin[3]!, rsIm = pin[4]!, rpRe = pin[5]!, rpIm = pin[6]!
+  project(f, kx, ky, kz, 0, 0, -1)
+  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
+  const R = (rsRe * rsRe + rsIm * rsIm) * (esRe * esRe + esIm * esIm) + (rpRe * rpRe + rpIm * rpIm) * (epRe * epRe + epIm * epIm)
+  if (!(pin[10]! < R)) return false
+  compose(f, rsRe * esRe - rsIm * esIm, rsRe * esIm + rsIm * esRe, rpRe * epRe - rpIm * epIm, rpRe * epIm + rpIm * epRe, kx, ky, -kz)
+  return true
+}

@@ -42,7 +42,8 @@ export type FlatCompanion = TraceResult['planar'] & { method: 'quadrature' }
  * has its own exact flat split (shared/optics/thinfilm/flat.ts): it is dispatched there, not here.
  */
 export function flatQuadratureApplies(sc: Scenario): boolean {
-  if ((sc.emitter as { thinFilm?: unknown }).thinFilm != null) return false // dispatch point: thin-film flat formula
+  // A thin-film stack has its own exact flat formula (thinfilm/flat.ts, applied in summarize); either way the
+  // companion of an extended source costs no rays. A finite pixel's footprint tally needs traced companion rays.
   return sc.emitter.source.shape === 'extended'
 }
 
@@ -479,7 +480,7 @@ const CACHE_ENTRIES = 32
 
 /** The flat companion of a scenario by quadrature (cached by the scenario's optics), or null when it does not apply. */
 export function flatCompanion(sc: Scenario): FlatCompanion | null {
-  if (!flatQuadratureApplies(sc)) return null
+  if (!flatQuadratureApplies(sc) || sc.emitter.thinFilm !== undefined) return null
   const key = JSON.stringify([sc.emitter, sc.reflector, sc.substrate, sc.trace.fresnel, sc.trace.maxEvents])
   const hit = cache.get(key)
   if (hit) return hit

@@ -6,14 +6,15 @@
 // the device alone, σE/E = σ1/η1. 'traced' keeps the traced companion as the cross-check.
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import { scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
+import { fresnelModeOf, scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
+import { applyThinFilm } from './thinfilm/result'
 import type { Losses, TraceResult } from '../types/result'
 import { flatCompanion, flatQuadratureApplies, type FlatCompanion } from './flat-quadrature'
 import { packScene, type PackedScene, S_HAS_LENS } from './scene'
 import { traceRange } from './tracer'
 import {
   createTally, mergeTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
-  T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
+  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
 export const CHUNK_RAYS = 1 << 16
@@ -47,14 +48,32 @@ export function prepareRun(sc: Scenario, opts: { companion?: CompanionMethod } =
 }
 
 /**
- * The companion summarize needs besides the tallies: the quadrature block when the tallies hold no traced companion
- * and the device has lenses, else null. Takes a scenario as stored (validated again here); null if it is not valid.
+ * The sheet emitter's companion by quadrature, which summarize needs besides the tallies, when the tallies hold no
+ * traced companion and the device has lenses; else null. A thin-film stack's exact companion is applied inside
+ * summarize from the scenario (thinfilm/result.ts), so it gets null here too. Takes a scenario as stored (validated
+ * again here); null if it is not valid.
  */
 export function companionFor(scenario: unknown, t: RunTallies): FlatCompanion | null {
   if (t.planar) return null
   const parsed = scenarioSchema.safeParse(scenario)
-  if (!parsed.success || parsed.data.lensArray === null) return null
+  if (!parsed.success || parsed.data.lensArray === null || parsed.data.emitter.thinFilm !== undefined) return null
   return flatCompanion(parsed.data)
+}
+
+/**
+ * The scenario summarize needs besides the counts (a thin-film stack's exact parts), from a stored scenario; undefined
+ * for the sheet emitter, whose result follows from the counts (and the quadrature companion) alone.
+ */
+export function summaryScenario(stored: unknown): Scenario | undefined {
+  const tf = (stored as { emitter?: { thinFilm?: unknown } } | null)?.emitter?.thinFilm
+  if (tf === undefined) return undefined
+  const parsed = scenarioSchema.safeParse(stored)
+  return parsed.success ? parsed.data : undefined
+}
+
+/** summarize for a cell as stored: its Fresnel mode, the quadrature companion and the thin-film parts from its scenario. */
+export function summarizeStored(t: RunTallies, seed: number, storedScenario: unknown): TraceResult {
+  return summarize(t, seed, fresnelModeOf(storedScenario), companionFor(storedScenario, t), summaryScenario(storedScenario))
 }
 
 /** Fixed chunk plan for `rays` rays: [firstRay, rayCount] pairs. */
@@ -93,7 +112,7 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const run = prepareRun(sc, { companion: opts.companion })
   const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
-  return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : flatCompanion(sc))
+  return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : companionFor(sc, total), sc)
 }
 
 function binomialErr(count: number, n: number): number {
@@ -140,10 +159,19 @@ function angularProfile(t: Tally) {
 
 /**
  * `fresnel`: the Fresnel mode that made the tallies (recorded in the result; absent for results made before it was
- * kept). `flat`: the companion by quadrature (flatCompanion / companionFor) when the tallies hold no traced one;
- * without either, the device is its own companion (a planar design).
+ * kept). `flat`: the sheet emitter's companion by quadrature (flatCompanion / companionFor) when the tallies hold no
+ * traced one; without either, the device is its own companion (a planar design). `scenario`: needed for a thin-film
+ * source (thinfilm/result.ts: fractions of all dipole power, the exact flat companion, the thin-film block); ignored
+ * otherwise.
  */
-export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode, flat?: FlatCompanion | null): TraceResult {
+export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode, flat?: FlatCompanion | null, scenario?: Scenario): TraceResult {
+  const r = summarizeCounts(t, seed, fresnel, flat)
+  // tallies stored before the stack slot existed are one slot shorter: no stack-absorbed rays
+  if (scenario?.emitter.thinFilm !== undefined) return applyThinFilm(r, scenario, t.device[T_STACK_ABSORBED] ?? 0)
+  return r
+}
+
+function summarizeCounts(t: RunTallies, seed: number, fresnel?: FresnelMode, flat?: FlatCompanion | null): TraceResult {
   const d = t.device
   const n = d[T_RAYS]!
   const ext = n > 0 ? d[T_EXTRACTED]! / n : 0

@@ -2,10 +2,11 @@
 // tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
 // A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
 import { DEFAULT_WAVELENGTH_NM, extinctionAt, indexAt, type IndexModel, type Scenario } from '../types/scenario'
-import { buildSpectralBlock, SP_AL, SP_AS, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID } from './spectral'
+import { buildSpectralBlock, SP_AL, SP_AS, SP_CDF, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID } from './spectral'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
+import { thinFilmSource } from './thinfilm/source'
 
 export const S_HAS_LENS = 0
 export const S_N_EMITTER = 1
@@ -34,7 +35,9 @@ export const S_MEASURED_OFFSET = 21
 export const S_SPECTRAL_OFFSET = 22
 /** Lens material absorption (1/µm): the substrate's plus 4πk/λ of a tabulated lens index. */
 export const S_LENS_ABSORPTION_PER_UM = 23
-export const S_HEADER = 24
+/** Offset of the thin-film block (thinfilm/source.ts) when the emitter is an OLED stack, else 0. */
+export const S_THINFILM_OFFSET = 24
+export const S_HEADER = 25
 /** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
 export const S_TABLE = S_HEADER
 
@@ -60,7 +63,10 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   const measured = lens && lens.shape === 'measured' && lens.profile ? buildProfile(lens.profile) : null
   const spectral = sc.emitter.spectrum !== undefined
   const measuredLen = measured ? 3 * measured.u.length : 0
-  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0))
+  // the OLED stack's tables (cached per stack, glass index and spectrum on this thread)
+  const tf = sc.emitter.thinFilm ? thinFilmSource(sc) : null
+  const tfLen = tf ? tf.block.length : 0
+  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0) + tfLen)
   // Indices at the monochromatic wavelength (a spectrum replaces them ray by ray from the spectral block)
   const lam = DEFAULT_WAVELENGTH_NM
   const lensIndex: IndexModel = sc.lensArray?.index ?? sc.substrate.index
@@ -72,8 +78,10 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   s[S_THICKNESS_UM] = sc.substrate.thicknessUm
   s[S_ABSORPTION_PER_UM] = base + kAbs(sc.substrate.index)
   s[S_LENS_ABSORPTION_PER_UM] = base + kAbs(lensIndex)
-  s[S_REFLECTANCE] = sc.reflector.reflectance
-  s[S_DIFFUSE_FRACTION] = sc.reflector.diffuseFraction
+  // with a stack there is no separate reflector (the stack reflects; rays never enter the emitter layer): a specular
+  // unit mirror, so the planar device ends totally reflected rays as trapped as for a specular sheet reflector
+  s[S_REFLECTANCE] = sc.reflector ? sc.reflector.reflectance : 1
+  s[S_DIFFUSE_FRACTION] = sc.reflector ? sc.reflector.diffuseFraction : 0
   const geo = sc.lensArray // the lattice still defines the launch cell of an extended source in the planar twin
   s[S_LATTICE] = geo && geo.lattice === 'square' ? LATTICE_SQUARE : LATTICE_HEXAGONAL
   s[S_PITCH_UM] = geo ? geo.pitchUm : 1
@@ -111,6 +119,25 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
     const at = S_HEADER + tableLen + measuredLen
     s[S_SPECTRAL_OFFSET] = at
     s.set(buildSpectralBlock(sc, lensIndex), at)
+    if (tf) {
+      // rays carry the power that enters the glass: each spectral cell weighed by F·G of its node
+      const c = at + SP_CDF
+      let acc = 0
+      const w = new Float64Array(SPECTRAL_GRID)
+      for (let j = 0; j < SPECTRAL_GRID; j++) {
+        const n = tf.nodes[tf.cellNode[j]!]!
+        w[j] = (s[c + j + 1]! - s[c + j]!) * n.point.purcell.mixed * n.glass
+      }
+      s[c] = 0
+      for (let j = 0; j < SPECTRAL_GRID; j++) { acc += w[j]!; s[c + j + 1] = acc }
+      for (let j = 1; j <= SPECTRAL_GRID; j++) s[c + j] = s[c + j]! / acc
+      s[c + SPECTRAL_GRID] = 1
+    }
+  }
+  if (tf) {
+    const at = S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0)
+    s[S_THINFILM_OFFSET] = at
+    s.set(tf.block, at)
   }
   return s
 }

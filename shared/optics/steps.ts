@@ -3,9 +3,12 @@
 // lands here first, then in the fused loop (tracer.ts), and tests/unit/optics/model-equality.test.ts proves the
 // two give bit-identical tallies (the same draws from the random stream in the same order, the same arithmetic).
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
-// top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts.
+// top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts. With a thin-film source
+// (thinfilm/source.ts) rays start in the substrate at z = 0 and the OLED stack takes the place of the emitter layer
+// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed.
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, metalReflect, randomPolarization } from './crossings'
+import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, linearPolarizationIn, metalReflect, pin, randomPolarization, stackReflectsIn } from './crossings'
+import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
 import { capHit, capNormal } from './geometry'
 import { HEX_ROW_FACTOR, sampleCell, wrapToSite } from './lattice'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
@@ -16,9 +19,9 @@ import {
   FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
   S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_ABSORPTION_PER_UM, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_SPECTRAL_OFFSET,
   S_N_EMITTER, S_N_LENS, S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM,
-  S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+  S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
-import { T_EXTRACTED, T_REFLECTOR, T_SUBSTRATE, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from './tally'
+import { T_EXTRACTED, T_REFLECTOR, T_STACK_ABSORBED, T_SUBSTRATE, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from './tally'
 
 /** The packed scene read once into named fields (µm, 1/µm; indices; booleans for the modes). */
 export interface Stack {
@@ -28,6 +31,8 @@ export interface Stack {
   thicknessUm: number; absorptionPerUm: number; lensAbsorptionPerUm: number
   /** Offset of the spectral block (spectral.ts), 0 without a spectrum. */
   spectralAt: number
+  /** Offset of the thin-film block (thinfilm/source.ts), 0 for the sheet emitter. */
+  thinFilmAt: number
   reflectance: number; diffuseFraction: number
   hexagonal: boolean; pitchUm: number; lensRadiusUm: number; sagUm: number; curvaturePerUm: number; k1: number
   measured: boolean
@@ -52,6 +57,7 @@ export function stackOf(scene: PackedScene): Stack {
     nEmitter: scene[S_N_EMITTER]!, nSubstrate: scene[S_N_SUBSTRATE]!, nLens: scene[S_N_LENS]!,
     thicknessUm: scene[S_THICKNESS_UM]!, absorptionPerUm: scene[S_ABSORPTION_PER_UM]!, lensAbsorptionPerUm: scene[S_LENS_ABSORPTION_PER_UM]!,
     spectralAt: scene[S_SPECTRAL_OFFSET]!,
+    thinFilmAt: scene[S_THINFILM_OFFSET]!,
     reflectance: scene[S_REFLECTANCE]!, diffuseFraction: scene[S_DIFFUSE_FRACTION]!,
     hexagonal: scene[S_LATTICE]! !== LATTICE_SQUARE, pitchUm: scene[S_PITCH_UM]!, lensRadiusUm: scene[S_LENS_RADIUS_UM]!,
     sagUm: scene[S_SAG_UM]!, curvaturePerUm: scene[S_CURVATURE_PER_UM]!, k1: scene[S_K1]!,
@@ -76,6 +82,7 @@ export interface RayRecorder {
 const v3 = new Float64Array(3)
 const cell = new Float64Array(2)
 const site = new Float64Array(3)
+const rc = new Float64Array(4)
 
 function end(ray: Ray, slot: number): number {
   ray.end = slot
@@ -110,6 +117,8 @@ function capNormalAt(ray: Ray, st: Stack, out: Float64Array): void {
 /**
  * Launch: a position in the source (drawn even for an extended source, so streams line up between variants),
  * then a direction from the angular profile. The ray starts in the emitter layer.
+ * Thin-film source: the position, the wavelength (with a spectrum), then the polarisation (s or p), μ and φ from the
+ * stack's emission into the glass at the ray's wavelength node; the ray starts in the glass at z = 0 going up.
  */
 export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   const u1 = draw(ray), u2 = draw(ray)
@@ -117,11 +126,14 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   else if (st.source === SOURCE_DISC) sampleDisc(st.sourceAUm, u1, u2, v3)
   else sampleRectangle(st.sourceAUm, st.sourceBUm, u1, u2, v3)
   ray.x = v3[0]!; ray.y = v3[1]!; ray.z = 0
-  if (st.profile === PROFILE_ISOTROPIC) sampleIsotropic(draw(ray), draw(ray), v3)
-  else if (st.profile === PROFILE_LAMBERTIAN) sampleLambertian(draw(ray), draw(ray), v3)
-  else sampleTabulated(st.scene, S_TABLE, draw(ray), draw(ray), draw(ray), v3)
-  ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
-  if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // unpolarised: a random linear state
+  const tf = st.thinFilmAt > 0
+  if (!tf) {
+    if (st.profile === PROFILE_ISOTROPIC) sampleIsotropic(draw(ray), draw(ray), v3)
+    else if (st.profile === PROFILE_LAMBERTIAN) sampleLambertian(draw(ray), draw(ray), v3)
+    else sampleTabulated(st.scene, S_TABLE, draw(ray), draw(ray), draw(ray), v3)
+    ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+    if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // unpolarised: a random linear state
+  }
   if (st.spectralAt > 0) {
     // the ray's wavelength from the spectrum, and its indices there (spectral.ts)
     const at = st.spectralAt
@@ -134,8 +146,34 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
     ray.wavelengthNm = 550
     ray.nE = st.nEmitter; ray.nS = st.nSubstrate; ray.nL = st.nLens; ray.alphaS = st.absorptionPerUm; ray.alphaL = st.lensAbsorptionPerUm
   }
-  ray.medium = MEDIUM_EMITTER
+  if (tf) {
+    // the stack's node nearest the middle of the ray's spectral cell (the cell the source tables weighed)
+    ray.tfNode = st.spectralAt > 0 ? thinFilmNode(st.scene, st.thinFilmAt, st.scene[st.spectralAt]! + (cell[0]! + 0.5) * st.scene[st.spectralAt + 1]!) : 0
+    const uPol = draw(ray), uTheta = draw(ray), uPhi = draw(ray)
+    const isP = sampleThinFilmLaunch(st.scene, st.thinFilmAt, ray.tfNode, uPol, uTheta, uPhi, v3)
+    ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
+    if (st.polarized) { pin[0] = ray.dx; pin[1] = ray.dy; pin[2] = ray.dz; pin[10] = isP; linearPolarizationIn(ray.pol) }
+    ray.medium = MEDIUM_SUBSTRATE
+  } else ray.medium = MEDIUM_EMITTER
   at(ray, rec)
+}
+
+/**
+ * The thin-film stack met from the glass (the ray at z = 0 going down): reflected with the stack's own coherent
+ * R(θ, λ) — polarised: the complex r_s, r_p on the ray's field; otherwise (R_s + R_p)/2, one uniform either way —
+ * else absorbed in the stack (stackAbsorbed).
+ */
+export function stackStep(ray: Ray, st: Stack): number {
+  stackCoefficients(st.scene, st.thinFilmAt, ray.tfNode, -ray.dz, rc)
+  const u = draw(ray)
+  if (st.polarized) {
+    pin[0] = ray.dx; pin[1] = ray.dy; pin[2] = ray.dz
+    pin[3] = rc[0]!; pin[4] = rc[1]!; pin[5] = rc[2]!; pin[6] = rc[3]!; pin[10] = u
+    if (!stackReflectsIn(ray.pol)) return end(ray, T_STACK_ABSORBED)
+  } else if (!(u < 0.5 * (rc[0]! * rc[0]! + rc[1]! * rc[1]! + rc[2]! * rc[2]! + rc[3]! * rc[3]!))) return end(ray, T_STACK_ABSORBED)
+  ray.dz = -ray.dz
+  ray.bounces++
+  return MEDIUM_SUBSTRATE
 }
 
 /**
@@ -165,7 +203,7 @@ export function emitterStep(ray: Ray, st: Stack): number {
 
 /**
  * Substrate, face to face (z is 0 or t on entry). Beer–Lambert on the way. Bottom face: back into the emitter
- * layer (TIR or Fresnel: up again). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
+ * layer (TIR or Fresnel: up again), or with a thin-film source the stack (stackStep). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
  * material (an interface only when the indices differ); else the flat land into air (with no lens array that is
  * the exit; in the planar device with a specular reflector a TIR ray can never escape: trapped).
  */
@@ -178,6 +216,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
     ray.z = 0
     ray.x += ray.dx * pathUm; ray.y += ray.dy * pathUm
     at(ray, rec)
+    if (st.thinFilmAt > 0) return stackStep(ray, st)
     const c = flatCrossing(ray, false, ray.nS, ray.nE, st.fresnel && ray.nE !== ray.nS, st.polarized)
     if (c === CROSS_TIR) { ray.dz = -ray.dz; ray.bounces++; return MEDIUM_SUBSTRATE }
     if (c !== CROSS_TRANSMIT) { ray.bounces++; return MEDIUM_SUBSTRATE }

@@ -1,6 +1,6 @@
 // Mergeable tallies of analog Monte Carlo: integer counts only (stored in a Float64Array, exact below 2^53), so
 // merging chunks in any order gives bitwise the same totals. Channels: each launched ray ends in exactly one of
-// extracted, reflector, substrate, waveguided, trapped, unresolved. Extracted rays are binned by their direction in
+// extracted, reflector, substrate, waveguided, trapped, unresolved, stack-absorbed (thin-film source). Extracted rays are binned by their direction in
 // air: 90 polar bins of 1° (θ from +z) and a θ–φ map of 90 × 72 bins (φ from +x, 5° bins: 12 per 60°, 18 per 90°,
 // so 6-fold and 4-fold symmetry can be checked bin for bin).
 
@@ -26,7 +26,9 @@ export const T_PIXEL_AXIS = T_PIXEL_EXTRACTED + 1
 /** Rays launched from a finite pixel (equals T_RAYS for disc/rectangle sources, 0 for an extended one). */
 export const T_PIXEL_RAYS = T_PIXEL_AXIS + 1
 export const PIXEL_AXIS_BINS = 5
-export const TALLY_LENGTH = T_PIXEL_RAYS + 1
+/** Thin-film source: rays that came back down to the layer stack and were absorbed there (1 − R of the stack). */
+export const T_STACK_ABSORBED = T_PIXEL_RAYS + 1
+export const TALLY_LENGTH = T_STACK_ABSORBED + 1
 
 export type Tally = Float64Array
 

@@ -11,6 +11,9 @@
 // rays (the batch's share): once it is spent, each ray left is cut short and counted unresolved too, so the work of
 // one call is bounded whatever the geometry, and decided by the ray stream alone (never by the clock). Positions are wrapped to the nearest lattice site
 // whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
+// Thin-film source (scene[S_THINFILM_OFFSET] > 0): the launch draws the wavelength first, then polarisation, μ and φ
+// from the stack's emission into the glass, and the ray starts in the substrate going up; at the bottom face the
+// stack reflects with its own r_s, r_p or absorbs (stackAbsorbed), as steps.ts stackStep.
 // This is the fused loop, kept for speed: the readable model of the same life is steps.ts (one function per medium,
 // run by model.ts), and tests/unit/optics/model-equality.test.ts proves the two give bit-identical tallies. Physics
 // lands in the readable model first, then here (shared/optics/README.md).
@@ -18,7 +21,8 @@ import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHitTo, HEX_ROW_FACTOR } from './geometry'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { fresnelReflects, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn } from './crossings'
+import { fresnelReflects, linearPolarizationIn, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn, stackReflectsIn } from './crossings'
+import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
 import { wrapToSite } from './lattice'
 import { SP_AL, SP_AS, SP_CDF, SP_NE, SP_NL, SP_NS, SPECTRAL_GRID } from './spectral'
 import { measuredProfileOf } from './scene'
@@ -27,10 +31,10 @@ import {
   FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
   S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
   S_N_SUBSTRATE, S_LENS_ABSORPTION_PER_UM, S_SPECTRAL_OFFSET, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
-  S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+  S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
-  PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
+  PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_STACK_ABSORBED, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -56,6 +60,8 @@ const v3 = new Float64Array(3)
 const hit = new Float64Array(3)
 // The ray's field in Fresnel mode "polarized" (crossings.ts: [xRe, xIm, yRe, yIm, zRe, zIm]).
 const pol = new Float64Array(6)
+// The thin-film stack's r_s, r_p at the ray's angle (thinfilm/source.ts stackCoefficients).
+const rc = new Float64Array(4)
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
@@ -71,6 +77,7 @@ export function traceRange(
   const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
   const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
   const spCdf = spAt + SP_CDF
+  const tfAt = scene[S_THINFILM_OFFSET]! // thin-film block (thinfilm/source.ts), 0 for the sheet emitter
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -90,7 +97,7 @@ export function traceRange(
   const trackPos = hasLens || source !== SOURCE_EXTENDED
   const row2Um = 2 * pitch * HEX_ROW_FACTOR // p√3
 
-  let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nEvents = 0
+  let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nStack = 0, nEvents = 0
   let done = 0
   for (; done < rayCount; done++) {
     if ((done & 4095) === 4095 && shouldStop !== undefined && shouldStop()) break
@@ -104,11 +111,15 @@ export function traceRange(
     else sampleRectangle(srcA, srcB, up1, up2, v3)
     let x = v3[0]!, y = v3[1]!, z = 0
     let ox = 0, oy = 0 // site offset removed by wrapping: the absolute lateral position is (x + ox, y + oy)
-    if (profile === PROFILE_ISOTROPIC) sampleIsotropic((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
-    else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
-    else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
-    let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
-    if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
+    let dx = 0, dy = 0, dz = 1
+    let tfNode = 0
+    if (tfAt === 0) {
+      if (profile === PROFILE_ISOTROPIC) sampleIsotropic((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+      else if (profile === PROFILE_LAMBERTIAN) sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+      else sampleTabulated(scene, S_TABLE, (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+      dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
+      if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
+    }
     let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
     if (spAt > 0) {
       // the ray's wavelength, and its indices and absorption there
@@ -128,8 +139,17 @@ export function traceRange(
       alpha = va + f * (scene[q + 1]! - va)
       q = spAt + SP_AL + lo; va = scene[q]!
       alphaL = va + f * (scene[q + 1]! - va)
+      if (tfAt > 0) tfNode = thinFilmNode(scene, tfAt, scene[spAt]! + (lo + 0.5) * scene[spAt + 1]!)
     }
     let med = MED_EMITTER
+    if (tfAt > 0) {
+      // thin-film source: polarisation, μ and φ of the stack's emission into the glass; the ray starts there going up
+      const uPol = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), uTheta = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), uPhi = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
+      const isP = sampleThinFilmLaunch(scene, tfAt, tfNode, uPol, uTheta, uPhi, v3)
+      dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
+      if (polar) { pin[0] = dx; pin[1] = dy; pin[2] = dz; pin[10] = isP; linearPolarizationIn(pol) }
+      med = MED_SUBSTRATE
+    }
     let onCap = false, excludeSelf = false
     let events = 0
     let end = -1 // tally slot the ray ends in
@@ -171,6 +191,18 @@ export function traceRange(
             // bottom face: substrate → emitter layer (then the reflector)
             z = 0
             if (trackPos) { x += dx * pathUm; y += dy * pathUm }
+            if (tfAt > 0) {
+              // the thin-film stack: its own coherent reflection, else absorbed in it (steps.ts stackStep)
+              stackCoefficients(scene, tfAt, tfNode, -dz, rc)
+              const us = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
+              if (polar) {
+                pin[0] = dx; pin[1] = dy; pin[2] = dz
+                pin[3] = rc[0]!; pin[4] = rc[1]!; pin[5] = rc[2]!; pin[6] = rc[3]!; pin[10] = us
+                if (!stackReflectsIn(pol)) { end = T_STACK_ABSORBED; break }
+              } else if (!(us < 0.5 * (rc[0]! * rc[0]! + rc[1]! * rc[1]! + rc[2]! * rc[2]! + rc[3]! * rc[3]!))) { end = T_STACK_ABSORBED; break }
+              dz = -dz
+              break
+            }
             const cosI = -dz
             const eta = nS / nE
             const sin2T = eta * eta * (1 - cosI * cosI)
@@ -335,6 +367,7 @@ export function traceRange(
       case T_SUBSTRATE: nSub++; break
       case T_WAVEGUIDED: nWg++; break
       case T_TRAPPED: nTrap++; break
+      case T_STACK_ABSORBED: nStack++; break
       default: nUnres++; break
     }
   }
@@ -346,6 +379,7 @@ export function traceRange(
   tally[T_TRAPPED] = tally[T_TRAPPED]! + nTrap
   tally[T_UNRESOLVED] = tally[T_UNRESOLVED]! + nUnres
   tally[T_EVENTS] = tally[T_EVENTS]! + nEvents
+  tally[T_STACK_ABSORBED] = tally[T_STACK_ABSORBED]! + nStack
   if (source !== SOURCE_EXTENDED) tally[T_PIXEL_RAYS] = tally[T_PIXEL_RAYS]! + done
   return done
 }

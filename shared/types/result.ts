@@ -10,7 +10,11 @@ export const lossesSchema = z.object({
   waveguided: z.number(),
   trapped: z.number(),
   unresolved: z.number(),
-  /** Thin-film source only: light that came back down to the layer stack and was absorbed there (1 − R_s/R_p). */
+  /**
+   * Thin-film source only: absorbed in the layer stack — traced light that came back down to it and was absorbed
+   * there (1 − R_s/R_p), plus the exact share that never left it (evanescent/plasmon modes, absorbed at emission), so
+   * that extraction and the losses sum to 1. thinFilm.modes splits it.
+   */
   stackAbsorbed: z.number().optional(),
 })
 
@@ -70,12 +74,13 @@ const modeSplitSchema = z.object({
  * air (outcoupling efficiency). The flat split is exact (quadrature, glass incoherent); the film split is traced.
  */
 export const thinFilmResultSchema = z.object({
-  /** The wavelength the figures below are given at (the spectrum's peak, or 550 nm). */
+  /** The wavelength F, q_eff, the dissipation spectrum and the glass emission are given at (the spectrum's peak, or 550 nm). */
   wavelengthNm: z.number(),
   purcellFactor: z.number(),
   /** q·F/(1 − q + q·F). */
   effectiveRadiativeEfficiency: z.number(),
   horizontalDipoleFraction: z.number(),
+  /** Over the whole spectrum, weighted as the traced rays are (spectrum × Purcell factor per wavelength). */
   modes: z.object({ flat: modeSplitSchema, film: modeSplitSchema }),
   /**
    * Power dissipation spectra K(u) at wavelengthNm, u = in-plane wavevector / k in the emitting layer, normalised

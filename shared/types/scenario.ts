@@ -2,6 +2,7 @@
 // editor form, the HTTP body, the CLI file and the worker task. Lengths in µm, absorption in 1/mm, angles in
 // degrees (this is an edge of the system; the core converts to radians when it packs the scene).
 import { z } from 'zod'
+import { materialAt, thinFilmSchema, type OpticalMaterial } from './thin-film'
 
 /** Tabulated emitter profile: [thetaDeg, relativeIntensity] rows, radiant intensity per steradian in the emitter. */
 const profileTableSchema = z
@@ -146,7 +147,13 @@ function checkIndexOverSpectrum(m: IndexModel | undefined, path: Array<string | 
 }
 
 export const emitterSchema = z.object({
-  index: indexSchema,
+  /** Required for the sheet emitter; with a thin-film stack it is taken from the emitting layer (any value given is replaced). */
+  index: indexSchema.optional(),
+  /**
+   * The OLED's own layer stack as the source (shared/types/thin-film.ts): rays start in the glass with the stack's
+   * emission, and light coming back down meets the stack's own reflectance. The scenario then has no `reflector`.
+   */
+  thinFilm: thinFilmSchema.optional(),
   /** Emission spectrum; absent: monochromatic 550 nm (no colour outputs). */
   spectrum: spectrumSchema.optional(),
   angularProfile: angularProfileSchema.default('isotropic'),
@@ -258,21 +265,51 @@ export const traceSchema = z.object({
 export const scenarioSchema = z
   .object({
     emitter: emitterSchema,
-    reflector: reflectorSchema,
+    /** The back reflector of the sheet emitter; absent with a thin-film stack (the stack reflects). */
+    reflector: reflectorSchema.optional(),
     substrate: substrateSchema,
     lensArray: lensArraySchema.nullable(),
     trace: traceSchema.default({ rays: 1_000_000, seed: 1, fresnel: 'averaged', maxEvents: 10_000 }),
   })
   .superRefine((s, ctx) => {
+    if (s.emitter.thinFilm !== undefined && s.reflector !== undefined) {
+      ctx.addIssue({ code: 'custom', path: ['reflector'], message: 'must be left out with a thin-film stack: the stack reflects with its own coherent reflectance down to the cathode' })
+    }
+    if (s.emitter.thinFilm !== undefined && typeof s.emitter.angularProfile === 'object') {
+      ctx.addIssue({ code: 'custom', path: ['emitter', 'angularProfile'], message: 'cannot be a table with a thin-film stack: the stack\'s own emission into the glass is traced (leave it isotropic)' })
+    }
+    if (s.emitter.thinFilm === undefined && s.reflector === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['reflector'], message: 'is required for the sheet emitter (or describe the OLED stack in emitter.thinFilm)' })
+    }
+    if (s.emitter.thinFilm === undefined && s.emitter.index === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['emitter', 'index'], message: 'is required for the sheet emitter (with a thin-film stack it comes from the emitting layer)' })
+    }
     const range = spectrumRangeNm(s.emitter.spectrum)
+    const tf = s.emitter.thinFilm
+    if (tf) {
+      // n,k tables of the stack must cover the wavelengths traced
+      const cover = (m: OpticalMaterial, path: Array<string | number>) => {
+        if (!m.table) return
+        const t0 = m.table[0]![0], t1 = m.table[m.table.length - 1]![0]
+        if (range[0] < t0 || range[1] > t1) ctx.addIssue({ code: 'custom', path: [...path, 'table'], message: `the n,k table covers ${t0}–${t1} nm but the spectrum spans ${round4(range[0])}–${round4(range[1])} nm` })
+      }
+      tf.layers.forEach((l, i) => cover(l.material, ['emitter', 'thinFilm', 'layers', i, 'material']))
+      cover(tf.cathode.material, ['emitter', 'thinFilm', 'cathode', 'material'])
+    }
     checkIndexOverSpectrum(s.emitter.index, ['emitter', 'index'], range, ctx)
     checkIndexOverSpectrum(s.substrate.index, ['substrate', 'index'], range, ctx)
     if (s.lensArray) checkIndexOverSpectrum(s.lensArray.index, ['lensArray', 'index'], range, ctx)
   })
-  .transform((s) => ({
-    ...s,
-    lensArray: s.lensArray === null ? null : { ...s.lensArray, index: s.lensArray.index ?? s.substrate.index },
-  }))
+  .transform((s) => {
+    const tf = s.emitter.thinFilm
+    // with a stack the emitter index is the emitting layer's (validated above: exactly one)
+    const index: IndexModel = tf ? materialAt(tf.layers.find((l) => l.emitting)!.material, DEFAULT_WAVELENGTH_NM).n : s.emitter.index!
+    return {
+      ...s,
+      emitter: { ...s.emitter, index },
+      lensArray: s.lensArray === null ? null : { ...s.lensArray, index: s.lensArray.index ?? s.substrate.index },
+    }
+  })
 
 /** A validated scenario with every default filled in (lensArray.index always set when there is an array). */
 export type Scenario = z.infer<typeof scenarioSchema>
@@ -302,11 +339,22 @@ const FIELD_WORDS: Record<string, [string, string]> = {
   'emitter.spectrum.peakNm': ['Spectrum peak', 'nm'],
   'emitter.spectrum.fwhmNm': ['Spectrum width (FWHM)', 'nm'],
   'emitter.spectrum.table': ['Emission spectrum table', ''],
+  'emitter.thinFilm': ['OLED stack', ''],
+  'emitter.thinFilm.layers': ['OLED stack layers', ''],
+  'emitter.thinFilm.cathode': ['Cathode', ''],
+  'emitter.thinFilm.cathode.material': ['Cathode material', ''],
+  'emitter.thinFilm.cathode.material.n': ['Cathode n', ''],
+  'emitter.thinFilm.cathode.material.k': ['Cathode k', ''],
+  'emitter.thinFilm.cathode.material.table': ['Cathode n,k table', ''],
+  'emitter.thinFilm.emitterPositionNm': ['Emitter position in the emitting layer', 'nm'],
+  'emitter.thinFilm.horizontalDipoleFraction': ['Horizontal dipole fraction', ''],
+  'emitter.thinFilm.radiativeEfficiency': ['Radiative efficiency q', ''],
   'emitter.source': ['Source area', ''],
   'emitter.source.shape': ['Source area', ''],
   'emitter.source.radiusUm': ['Source radius', 'µm'],
   'emitter.source.widthUm': ['Pixel width', 'µm'],
   'emitter.source.heightUm': ['Pixel height', 'µm'],
+  'reflector': ['Back reflector', ''],
   'reflector.reflectance': ['Back reflectance', ''],
   'reflector.diffuseFraction': ['Diffuse share of reflection', ''],
   'substrate.index': ['Substrate index', ''],
@@ -328,7 +376,7 @@ const FIELD_WORDS: Record<string, [string, string]> = {
 
 /** Column names of the tables a scenario holds, by the table's field (index tables: wavelength, n, k). */
 function tableColumns(key: string): readonly string[] {
-  if (key.endsWith('.index')) return ['wavelength (nm)', 'n', 'k']
+  if (key.endsWith('.index') || key.endsWith('.material')) return ['wavelength (nm)', 'n', 'k']
   if (key === 'emitter.spectrum') return ['wavelength (nm)', 'relative power']
   if (key === 'emitter.angularProfile') return ['θ (°)', 'relative intensity']
   if (key === 'lensArray.profile') return ['r (µm)', 'height (µm)']
@@ -341,7 +389,22 @@ const PART_WORDS: Record<string, string> = { sellmeier: 'Sellmeier formula', cau
  * Field name (and unit) for a path; inside a formula or table the part, row and column, e.g. "Lens index table
  * row 1, k" or "Substrate index Sellmeier formula B".
  */
+const LAYER_PART_WORDS: Record<string, [string, string]> = {
+  thicknessNm: ['thickness', 'nm'], 'material.n': ['n', ''], 'material.k': ['k', ''], 'material.table': ['n,k table', ''], material: ['material', ''],
+  emitting: ['emitting mark', ''], name: ['name', ''],
+}
+
 function fieldWords(path: ReadonlyArray<PropertyKey>): [string, string] {
+  // a row of the OLED stack: "Stack layer 4 thickness" (layers counted from the glass, 1 first)
+  if (path.length >= 4 && path[0] === 'emitter' && path[1] === 'thinFilm' && path[2] === 'layers' && typeof path[3] === 'number') {
+    const rest = path.slice(4).map(String).join('.')
+    if (path[4] === 'material' && path[5] === 'table' && typeof path[6] === 'number') {
+      const col = typeof path[7] === 'number' ? `, ${['wavelength (nm)', 'n', 'k'][path[7]] ?? `column ${path[7] + 1}`}` : ''
+      return [`Stack layer ${path[3] + 1} n,k table row ${path[6] + 1}${col}`, '']
+    }
+    const w = LAYER_PART_WORDS[rest]
+    return [`Stack layer ${path[3] + 1}${rest === '' ? '' : ` ${w ? w[0] : rest}`}`, w ? w[1] : '']
+  }
   for (let n = path.length; n > 0; n--) {
     const key = path.slice(0, n).map(String).join('.')
     const w = FIELD_WORDS[key]
@@ -395,15 +458,20 @@ export function scenarioErrorMessages(error: z.ZodError, data?: unknown): string
     const u = unit ? ` ${unit}` : ''
     const got = valueAt(data, iss.path)
     const gotText = got === undefined ? '' : `: got ${valueText(got, unit)}`
+    // the stack's own bounds carry their reason (thin-film.ts): keep it, with the trade's field name in front
+    if ((iss.code === 'too_small' || iss.code === 'too_big') && iss.path[1] === 'thinFilm' && iss.origin !== 'array' && / must /.test(iss.message)) {
+      return `${where} ${iss.message.replace(/^.*? must /, 'must ')}${gotText}`
+    }
+    const rowWord = iss.path[iss.path.length - 1] === 'layers' ? 'layers' : 'rows'
     switch (iss.code) {
       case 'too_small': {
         const min = Number(iss.minimum)
-        if (iss.origin === 'array') return `${where} must have at least ${min} rows${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
+        if (iss.origin === 'array') return `${where} must have at least ${min} ${rowWord}${got === undefined ? '' : `: got ${(got as unknown[]).length}`}`
         return `${where} must be ${iss.inclusive ? 'at least' : 'above'} ${min}${u}${gotText}`
       }
       case 'too_big': {
         const max = Number(iss.maximum)
-        if (iss.origin === 'array') return `${where} must have at most ${max} rows`
+        if (iss.origin === 'array') return `${where} must have at most ${max} ${rowWord}${Array.isArray(got) ? `: got ${got.length}` : ''}`
         return `${where} must be ${iss.inclusive ? 'at most' : 'below'} ${max}${u}${gotText}`
       }
       case 'invalid_type':

@@ -9,9 +9,20 @@ import { FIGURE_KEYS, type Figure } from './figures'
 import { MAX_RAYS_PER_CELL, MIN_RAYS_PER_CELL } from './ray-limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
+import { MAX_THIN_FILM_LAYERS } from './thin-film'
 
-/** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
-export const AXIS_PARAMETERS = {
+/** 0 … MAX_THIN_FILM_LAYERS − 1 as literals, so the 30 layer axes are ordinary keys (no index signature). */
+type LayerIndex = 0 | 1 | 2 | 3 | 4 | 5 | 6 | 7 | 8 | 9 | 10 | 11 | 12 | 13 | 14 | 15 | 16 | 17 | 18 | 19 | 20 | 21 | 22 | 23 | 24 | 25 | 26 | 27 | 28 | 29
+type LayerThicknessAxis = `emitter.thinFilm.layers[${LayerIndex}].thicknessNm`
+
+/** The OLED stack's layer thicknesses (layers counted from the glass; the path indexes from 0). */
+const LAYER_THICKNESS_AXES = Object.fromEntries(Array.from({ length: MAX_THIN_FILM_LAYERS }, (_, i) => [
+  `emitter.thinFilm.layers[${i}].thicknessNm`, { label: `Stack layer ${i + 1} thickness`, unit: 'nm' },
+])) as Record<LayerThicknessAxis, { label: string; unit: string }>
+
+const NAMED_AXES = {
+  'emitter.thinFilm.emitterPositionNm': { label: 'Emitter position in the emitting layer', unit: 'nm' },
+  'emitter.thinFilm.horizontalDipoleFraction': { label: 'Horizontal dipole fraction', unit: '' },
   'emitter.index': { label: 'Emitter index', unit: '' },
   'emitter.source.radiusUm': { label: 'Source disc radius', unit: 'µm' },
   'emitter.source.widthUm': { label: 'Pixel width', unit: 'µm' },
@@ -32,8 +43,13 @@ export const AXIS_PARAMETERS = {
   'lensArray.fillFactor': { label: 'Fill factor', unit: '' },
 } as const
 
+/** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
+export const AXIS_PARAMETERS = { ...LAYER_THICKNESS_AXES, ...NAMED_AXES } as Record<LayerThicknessAxis, { label: string; unit: string }> & typeof NAMED_AXES
+
 export type AxisParameter = keyof typeof AXIS_PARAMETERS
 const axisParameterNames = Object.keys(AXIS_PARAMETERS) as [AxisParameter, ...AxisParameter[]]
+/** `layers[3]` in an axis path: the array field and the index. */
+const INDEXED = /^(\w+)\[(\d+)\]$/
 
 /** Largest number of values on one axis, and of cells in one sweep. */
 export const MAX_AXIS_STEPS = 50
@@ -122,7 +138,9 @@ export type SweepCell =
 function setPath(target: Record<string, unknown>, path: string[], value: number): boolean {
   let o: Record<string, unknown> = target
   for (let i = 0; i < path.length - 1; i++) {
-    const next = o[path[i]!]
+    const m = INDEXED.exec(path[i]!)
+    let next = o[m ? m[1]! : path[i]!]
+    if (m) next = Array.isArray(next) ? next[Number(m[2])] : undefined
     if (next === null || typeof next !== 'object') return false
     o = next as Record<string, unknown>
   }
@@ -156,6 +174,17 @@ export function axisProblems(base: Scenario, axes: SweepAxis[]): string[] {
     }
     if ((a.parameter === 'emitter.source.widthUm' || a.parameter === 'emitter.source.heightUm') && src.shape !== 'rectangle') {
       problems.push(`axes[${i}].parameter ${a.parameter} needs a rectangle source, but the design's source is ${src.shape}`)
+    }
+    const tf = base.emitter.thinFilm
+    if (a.parameter.startsWith('emitter.thinFilm.') && tf === undefined) {
+      problems.push(`axes[${i}].parameter ${a.parameter} needs an OLED stack (emitter.thinFilm), but the design uses the sheet emitter`)
+    }
+    const layer = /^emitter\.thinFilm\.layers\[(\d+)\]/.exec(a.parameter)
+    if (layer && tf && Number(layer[1]) >= tf.layers.length) {
+      problems.push(`axes[${i}].parameter ${a.parameter}: the stack has ${tf.layers.length} layers (layers[0] to layers[${tf.layers.length - 1}])`)
+    }
+    if (tf && (a.parameter.startsWith('reflector.') || a.parameter === 'emitter.index')) {
+      problems.push(`axes[${i}].parameter ${a.parameter} does not apply with an OLED stack: ${a.parameter === 'emitter.index' ? 'the emitter index is the emitting layer\'s' : 'the stack itself reflects'}`)
     }
     if (a.parameter === 'lensArray.conicConstant' && base.lensArray && base.lensArray.shape !== 'conic') {
       problems.push(`axes[${i}].parameter lensArray.conicConstant needs conic caps, but the design uses ${base.lensArray.shape}`)

@@ -191,7 +191,7 @@ describe('thinFilmSchema: bad stacks get field-named messages in the trade\'s wo
     expect(r.radiativeEfficiency).toBe(1)
   })
   it('no emitting layer', () => fails({ ...good, layers: [layer(100, 1.9), layer(20, 1.75)] }, ['layers'], /no emitting layer/))
-  it('two emitting layers', () => fails({ ...good, layers: [layer(100, 1.9, 0, true), layer(20, 1.75, 0, true)] }, ['layers', 1, 'emitting'], /two emitting layers/))
+  it('two emitting layers', () => fails({ ...good, layers: [layer(100, 1.9, 0, true), layer(20, 1.75, 0, true)] }, ['layers', 1, 'emitting'], /2 emitting layers \(layers 1, 2, counted from the glass\)/))
   it('emitter position outside the emitting layer', () => fails({ ...good, emitterPositionNm: 25 }, ['emitterPositionNm'], /outside the emitting layer.*20 nm/))
   it('negative extinction coefficient', () => fails({ ...good, layers: [layer(100, 1.9, -0.01), layer(20, 1.75, 0, true)] }, ['layers', 0, 'material', 'k'], /must not be negative/))
   it('a layer thicker than 10 µm', () => fails({ ...good, layers: [layer(10_001, 1.9), layer(20, 1.75, 0, true)] }, ['layers', 0, 'thicknessNm'], /at most 10000 nm/))

@@ -8,7 +8,7 @@
 // this p convention a perfect conductor gives r_s = −1, r_p = +1. The multilayer is reduced by the Airy recursion
 // R_i = (r_ij + R_j e^{2iβ_j})/(1 + r_ij R_j e^{2iβ_j}), T_i = t_ij T_j e^{iβ_j}/(1 + r_ij R_j e^{2iβ_j}),
 // β_j = k0·w_j·d_j (Born & Wolf, Principles of Optics, §1.6; Macleod, Thin-Film Optical Filters, ch. 2).
-import type { ThinFilm } from '../../types/thin-film'
+import { materialAt, type ThinFilm } from '../../types/thin-film'
 import { cexpi, csqrtUpper } from './complex'
 
 /** One wavelength's stack in the core's numeric form (media 0 = glass … M−1 = cathode). */
@@ -54,16 +54,18 @@ export function prepareStack(tf: ThinFilm, glassIndex: number, wavelengthNm: num
   let e = -1
   for (let i = 0; i < N; i++) {
     const l = tf.layers[i]!
-    set(i + 1, l.material.n, l.material.k)
+    const m = materialAt(l.material, wavelengthNm)
+    set(i + 1, m.n, m.k)
     // A lossless inner layer gets Im ε ≥ LOSS_FLOOR so guided modes (poles of 1/(1 − a₊a₋) on the real u axis,
     // delta functions of finite weight) become Lorentzians of that weight that the quadrature can integrate.
     if (!l.emitting && ei[i + 1]! < LOSS_FLOOR) ei[i + 1] = LOSS_FLOOR
     dk[i + 1] = k0 * l.thicknessNm
     if (l.emitting && e < 0) e = i + 1
   }
-  set(M - 1, tf.cathode.material.n, tf.cathode.material.k)
+  const c = materialAt(tf.cathode.material, wavelengthNm)
+  set(M - 1, c.n, c.k)
   let zm = 0, zp = 0, zNear = Infinity
-  const ne = e > 0 ? tf.layers[e - 1]!.material.n : glassIndex
+  const ne = e > 0 ? materialAt(tf.layers[e - 1]!.material, wavelengthNm).n : glassIndex
   if (e > 0) {
     zm = k0 * tf.emitterPositionNm
     zp = dk[e]! - zm

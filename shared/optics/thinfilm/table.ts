@@ -26,7 +26,7 @@ export interface ThinFilmTable {
 }
 
 /** cyrb53 (a public-domain 53-bit string hash): stable across runs and platforms, collisions ~2⁻⁵³ per pair. */
-function hash53(str: string): string {
+export function hash53(str: string): string {
   let h1 = 0xdeadbeef, h2 = 0x41c6ce57
   for (let i = 0; i < str.length; i++) {
     const c = str.charCodeAt(i)
@@ -41,8 +41,8 @@ function hash53(str: string): string {
 /** Stable key: fields listed explicitly (names are labels and do not change the optics). */
 export function thinFilmCacheKey(tf: ThinFilm, wavelengthsNm: readonly number[], optics: ThinFilmOptics, angleCount = DEFAULT_GLASS_ANGLE_COUNT): string {
   const canon = {
-    l: tf.layers.map((l) => [l.thicknessNm, l.material.n, l.material.k, l.emitting ? 1 : 0]),
-    c: [tf.cathode.material.n, tf.cathode.material.k],
+    l: tf.layers.map((l) => [l.thicknessNm, l.material.table ?? [l.material.n, l.material.k], l.emitting ? 1 : 0]),
+    c: tf.cathode.material.table ?? [tf.cathode.material.n, tf.cathode.material.k],
     z: tf.emitterPositionNm, h: tf.horizontalDipoleFraction, q: tf.radiativeEfficiency,
     g: [optics.glassIndex, optics.glassThicknessUm ?? 0, optics.glassAbsorptionPerMm ?? 0, optics.outsideIndex ?? 1],
     w: wavelengthsNm, a: angleCount,

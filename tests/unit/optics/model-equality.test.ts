@@ -2,9 +2,10 @@
 // bit-identical tallies — every slot, the θ–φ map included — on scenarios covering every emitter profile, cap
 // shape, Fresnel mode and source shape (plus absorption, a diffuse reflector, a lens index of its own, a square
 // lattice and an event limit that bites). A physics change made in one and not the other fails here.
-import { describe, expect, it } from 'vitest'
+import { describe, expect, it, vi } from 'vitest'
 import { createTally, packScene, traceRange, traceRangeModel, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED, THETA_BINS, PHI_BINS } from '../../../shared/optics'
 import { scenarioSchema, type ScenarioInput } from '../../../shared/types/scenario'
+import { REFERENCE_GREEN_STACK } from '../../../shared/types/thin-film'
 
 const stack = {
   emitter: { index: 1.7, angularProfile: 'isotropic' as const, source: { shape: 'extended' as const } },
@@ -19,7 +20,19 @@ const sampledSphere = (a: number, h: number): Array<[number, number]> => {
 const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
 const table = { table: [[0, 1], [30, 0.9], [60, 0.5], [89, 0.05], [90, 0]] as Array<[number, number]> }
 
+/** The OLED stack as the source (no reflector: the stack reflects). */
+const oled = {
+  emitter: { thinFilm: REFERENCE_GREEN_STACK, source: { shape: 'extended' as const } },
+  substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
+}
+
 const cases: Record<string, ScenarioInput> = {
+  'thin-film source, planar, averaged': { ...oled, lensArray: null },
+  'thin-film source, planar, polarized, absorbing glass': { ...oled, substrate: { ...oled.substrate, absorptionPerMm: 1 }, trace: { fresnel: 'polarized' }, lensArray: null },
+  'thin-film source, hex hemispheres, polarized': { ...oled, trace: { fresnel: 'polarized' }, lensArray: hemi },
+  'thin-film source, square parabolic, no Fresnel, rectangle pixel': { ...oled, emitter: { ...oled.emitter, source: { shape: 'rectangle', widthUm: 30, heightUm: 20 } }, trace: { fresnel: 'none' }, lensArray: { lattice: 'square', pitchUm: 20, diameterUm: 18, sagUm: 6, shape: 'parabolic' } },
+  'thin-film source, Gaussian spectrum, BK7 glass, lens 1.6, polarized': { ...oled, emitter: { ...oled.emitter, spectrum: { peakNm: 530, fwhmNm: 40 } }, substrate: { ...oled.substrate, index: bk7 }, trace: { fresnel: 'polarized' }, lensArray: { ...hemi, index: 1.6 } },
+  'thin-film source, table spectrum, averaged, hex measured cap': { ...oled, emitter: { ...oled.emitter, spectrum: { table: [[470, 0.2], [520, 1], [560, 0.6], [600, 0.1]] } }, lensArray: { ...hemi, sagUm: 3, shape: 'measured', profile: sampledSphere(5, 3) } },
   'planar, isotropic, specular mirror (trapped)': { ...stack, lensArray: null },
   'planar, Lambertian, diffuse mirror, absorbing': { ...stack, emitter: { ...stack.emitter, angularProfile: 'lambertian' }, reflector: { reflectance: 0.9, diffuseFraction: 0.5 }, substrate: { ...stack.substrate, absorptionPerMm: 2 }, lensArray: null },
   'planar, table profile, disc pixel, no Fresnel': { ...stack, emitter: { index: 1.8, angularProfile: table, source: { shape: 'disc', radiusUm: 20 } }, trace: { fresnel: 'none' }, lensArray: null },
@@ -47,6 +60,10 @@ const cases: Record<string, ScenarioInput> = {
   'planar, line spectrum 610 nm, Sellmeier substrate, diffuse': { ...stack, emitter: { ...stack.emitter, spectrum: { wavelengthNm: 610 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.4 }, substrate: { ...stack.substrate, index: bk7 }, lensArray: null },
   'equal indices everywhere, ideal mirror': { emitter: { index: 1.5, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 1, diffuseFraction: 0 }, substrate: { index: 1.5, thicknessUm: 20, absorptionPerMm: 0 }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } },
 }
+
+// the spectral thin-film cases tabulate their stack over ~50 wavelength nodes first (~0.5 s quiet, more when the
+// machine is shared)
+vi.setConfig({ testTimeout: 60_000 })
 
 function firstDifference(a: Float64Array, b: Float64Array): string {
   for (let i = 0; i < TALLY_LENGTH; i++) if (a[i] !== b[i]) return `slot ${i}: fused ${a[i]}, model ${b[i]}`
