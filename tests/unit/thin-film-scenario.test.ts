@@ -172,7 +172,7 @@ describe('a thin-film run', () => {
     const parts = { device: createTally(), planar: null }
     for (const [f, c] of [[0, 7_000], [7_000, 5_000], [12_000, 8_000]] as const) mergeRunTallies(parts, traceChunk(run, f, c, 3))
     expect(parts.device[T_STACK_ABSORBED]!).toBeGreaterThan(0)
-    expect(summarize(parts, 3, 'polarized', sc)).toEqual(whole)
+    expect(summarize(parts, 3, 'polarized', null, sc)).toEqual(whole)
   })
   it('a disc pixel keeps a traced companion for its footprint tally; the planar block is still the exact one', () => {
     const disc = scenarioSchema.parse({ ...sc, emitter: { ...sc.emitter, source: { shape: 'disc', radiusUm: 30 } } })
