@@ -6,7 +6,7 @@
 import { hostname } from 'node:os'
 import type pg from 'pg'
 import type { Piscina } from 'piscina'
-import { createTally, mergeRunTallies, summarize, TALLY_LENGTH, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
+import { createTally, mergeRunTallies, runTalliesFromBuffer, summarize, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { fresnelModeOf } from '../../shared/types/scenario'
 import { usePool } from '../utils/db'
@@ -22,10 +22,8 @@ interface BatchJobData { cellId: string; batchIndex: number }
 
 const OPEN = ['queued', 'running']
 
-function splitBuffer(buf: ArrayBuffer): RunTallies {
-  const all = new Float64Array(buf)
-  return { device: all.subarray(0, TALLY_LENGTH), planar: all.length === 2 * TALLY_LENGTH ? all.subarray(TALLY_LENGTH) : null }
-}
+// device tally then the companion's, with or without the colour block (shared/optics run.ts)
+const splitBuffer = runTalliesFromBuffer
 
 /** The compact figures kept beside the counts for lists, maps and ranking. */
 export function cellSummary(r: ReturnType<typeof summarize>): CellSummary {

@@ -30,6 +30,7 @@ import {
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
+  COLOUR_AXIS_ROW, COLOUR_BIN_NM, COLOUR_BINS, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, T_COLOUR,
   PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
@@ -71,6 +72,9 @@ export function traceRange(
   const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
   const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
   const spCdf = spAt + SP_CDF
+  // colour counts (film.ts scoreColour) only with a spectrum and a tally that has the block
+  const colour = spAt > 0 && hasColour(tally)
+  const launchRow = T_COLOUR + COLOUR_LAUNCH_ROW * COLOUR_BINS, axisRow = T_COLOUR + COLOUR_AXIS_ROW * COLOUR_BINS
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -110,6 +114,7 @@ export function traceRange(
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
     if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
     let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
+    let wl = 550 // the ray's wavelength, nm (read only for the colour counts)
     if (spAt > 0) {
       // the ray's wavelength, and its indices and absorption there
       // spectral.ts sampleWavelength and spectralValue, inlined by hand (same operations in the same order)
@@ -118,6 +123,7 @@ export function traceRange(
       while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (scene[spCdf + mid]! <= uw) lo = mid; else hi = mid }
       const ca = scene[spCdf + lo]!, cb = scene[spCdf + lo + 1]!
       const f = cb > ca ? (uw - ca) / (cb - ca) : 0
+      wl = scene[spAt]! + (lo + f) * scene[spAt + 1]!
       let q = spAt + SP_NE + lo, va = scene[q]!
       nE = va + f * (scene[q + 1]! - va)
       q = spAt + SP_NS + lo; va = scene[q]!
@@ -307,12 +313,13 @@ export function traceRange(
       }
     }
     nEvents += events
+    let bt = -1 // 1° polar bin of an extracted ray
     switch (end) {
       case T_EXTRACTED: {
         // film.ts scoreExit, inlined by hand (a call here cost the planar bench ~10 %)
         nExt++
         const th = Math.acos(dz > 1 ? 1 : dz) // |d| = 1 up to rounding; acos(1 + 1e-16) would be NaN
-        let bt = (th * RAD_TO_THETA_BIN) | 0
+        bt = (th * RAD_TO_THETA_BIN) | 0
         if (bt >= THETA_BINS) bt = THETA_BINS - 1
         let ph = Math.atan2(dy, dx)
         if (ph < 0) ph += TWO_PI
@@ -336,6 +343,17 @@ export function traceRange(
       case T_WAVEGUIDED: nWg++; break
       case T_TRAPPED: nTrap++; break
       default: nUnres++; break
+    }
+    if (colour) {
+      // film.ts colourBinOf and scoreColour, inlined by hand
+      const w = (wl - COLOUR_FIRST_EDGE_NM) / COLOUR_BIN_NM
+      const wb = w >= 0 && w < COLOUR_IN_RANGE_BINS ? w | 0 : COLOUR_IN_RANGE_BINS
+      tally[launchRow + wb] = tally[launchRow + wb]! + 1
+      if (bt >= 0) {
+        const b = T_COLOUR + (bt >> 1) * COLOUR_BINS + wb
+        tally[b] = tally[b]! + 1
+        if (bt < PIXEL_AXIS_BINS) tally[axisRow + wb] = tally[axisRow + wb]! + 1
+      }
     }
   }
   tally[T_RAYS] = tally[T_RAYS]! + done
