@@ -7,7 +7,7 @@ import { composeMail, publicBaseUrl, sendMail } from '../utils/mail'
 import { figureOf, type CellSummary } from './runs'
 import { AXIS_PARAMETERS, type AxisParameter } from '../../shared/types/sweep'
 
-const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel' }
+const FIGURE_NAMES: Record<string, string> = { enhancement: 'enhancement', extraction: 'extraction', onAxisLuminance: 'on-axis luminance', pixelOnAxisGain: 'on-axis gain over the pixel', maxDeltaUvTo60: 'largest colour shift Δu′v′ over 0–60° (lower is better)', photopicOnAxisGain: 'photopic on-axis gain' }
 
 export function formatWithSigma(value: number, sigma: number): string {
   // Digits to the σ's second significant figure (common practice for Monte Carlo figures).

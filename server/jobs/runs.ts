@@ -8,7 +8,7 @@ import type pg from 'pg'
 import { ENGINE_VERSION } from '../../shared/optics/version'
 import { scenarioSchema, type Scenario } from '../../shared/types/scenario'
 import {
-  AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, type Figure, type SweepAxis, type SweepCell,
+  AXIS_PARAMETERS, axisProblems, cellSeed, expandSweep, LOWER_IS_BETTER_FIGURES, SPECTRUM_FIGURES, type Figure, type SweepAxis, type SweepCell,
 } from '../../shared/types/sweep'
 import * as schema from '../db/schema'
 import { runBatches, runCells, runs, type Run, type RunCell } from '../db/schema'
@@ -136,6 +136,9 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     const problems = axisProblems(base, axes)
     if (input.figure === 'pixelOnAxisGain' && base.emitter.source.shape === 'extended') {
       problems.push('Ranking by the pixel figure needs a disc or rectangle source; this design emits over the whole panel')
+    }
+    if (input.figure && SPECTRUM_FIGURES.includes(input.figure) && base.emitter.spectrum === undefined) {
+      problems.push('Ranking by colour shift or photopic gain needs an emission spectrum; this design emits one wavelength')
     }
     if (problems.length) throw new RunRequestError(problems.join('; '), 400, problems)
   }
@@ -274,6 +277,10 @@ export function figureOf(summary: CellSummary | null, figure: string): { value: 
     case 'onAxisLuminance': return { value: summary.onAxisLuminance, stdErr: summary.onAxisLuminanceStdErr }
     case 'pixelOnAxisGain':
       return summary.pixelOnAxisGain === null || summary.pixelOnAxisGain === undefined ? null : { value: summary.pixelOnAxisGain, stdErr: summary.pixelOnAxisGainStdErr ?? 0 }
+    case 'maxDeltaUvTo60':
+      return summary.maxDeltaUvTo60 === null || summary.maxDeltaUvTo60 === undefined ? null : { value: summary.maxDeltaUvTo60, stdErr: summary.maxDeltaUvTo60StdErr ?? 0 }
+    case 'photopicOnAxisGain':
+      return summary.photopicOnAxisGain === null || summary.photopicOnAxisGain === undefined ? null : { value: summary.photopicOnAxisGain, stdErr: summary.photopicOnAxisGainStdErr ?? 0 }
     default: return { value: summary.enhancement, stdErr: summary.enhancementStdErr }
   }
 }
@@ -292,18 +299,24 @@ export interface CellSummary {
   /** Finite-pixel sources only (else null; absent in summaries stored before it existed). */
   pixelOnAxisGain?: number | null
   pixelOnAxisGainStdErr?: number | null
+  /** With an emission spectrum only (else null; absent in older summaries): largest Δu′v′ over 0–60°, photopic on-axis gain. */
+  maxDeltaUvTo60?: number | null
+  maxDeltaUvTo60StdErr?: number | null
+  photopicOnAxisGain?: number | null
+  photopicOnAxisGainStdErr?: number | null
   losses: Record<string, number>
   lossesStdErr: Record<string, number>
 }
 
-/** Index of the best finished cell by the run's figure (highest value), or null. */
+/** Index of the best finished cell by the run's figure (highest value; lowest for a colour shift), or null. */
 export function bestCell(cells: Array<Pick<RunCell, 'cellIndex' | 'status' | 'summary'>>, figure: string): number | null {
+  const sign = LOWER_IS_BETTER_FIGURES.includes(figure) ? -1 : 1
   let best: number | null = null
   let bestValue = -Infinity
   for (const c of cells) {
     if (c.status !== 'done') continue
     const f = figureOf(c.summary as CellSummary | null, figure)
-    if (f && Number.isFinite(f.value) && f.value > bestValue) { bestValue = f.value; best = c.cellIndex }
+    if (f && Number.isFinite(f.value) && sign * f.value > bestValue) { bestValue = sign * f.value; best = c.cellIndex }
   }
   return best
 }

@@ -40,6 +40,10 @@ export function cellSummary(r: ReturnType<typeof summarize>): CellSummary {
     halfLuminanceAngleDeg: r.luminance.halfLuminanceAngleDeg,
     pixelOnAxisGain: r.pixel ? r.pixel.onAxisEnhancement : null,
     pixelOnAxisGainStdErr: r.pixel ? r.pixel.onAxisEnhancementStdErr : null,
+    maxDeltaUvTo60: r.colour ? r.colour.maxDeltaUvTo60 : null,
+    maxDeltaUvTo60StdErr: r.colour ? r.colour.maxDeltaUvTo60StdErr : null,
+    photopicOnAxisGain: r.photopicOnAxisGain ?? null,
+    photopicOnAxisGainStdErr: r.photopicOnAxisGainStdErr ?? null,
     losses: r.losses,
     lossesStdErr: r.lossesStdErr,
   }

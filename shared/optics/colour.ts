@@ -31,7 +31,7 @@ export const COLOUR_STD_ERR_METHOD = 'delta method (first order) over the multin
 // d_j = x̄ + 15ȳ + 3z̄, the u′v′ denominator's weight per bin
 const CIE_D = CIE_X.map((x, j) => x + 15 * CIE_Y[j]! + 3 * CIE_Z[j]!)
 
-interface BandColour { x: number; y: number; u: number; v: number; varU: number; varV: number; covUV: number }
+interface BandColour { x: number; y: number; u: number; v: number; varX: number; varY: number; varU: number; varV: number; covUV: number }
 
 /** Chromaticity of one row of counts with its delta-method (co)variances; null when the row holds no visible light. */
 export function rowColour(t: Tally, row: number): BandColour | null {
@@ -45,15 +45,20 @@ export function rowColour(t: Tally, row: number): BandColour | null {
   const D = X + 15 * Y + 3 * Z
   if (!(S > 0) || !(D > 0)) return null
   const u = (4 * X) / D, v = (9 * Y) / D
-  let varU = 0, varV = 0, covUV = 0
+  const x = X / S, y = Y / S
+  let varX = 0, varY = 0, varU = 0, varV = 0, covUV = 0
   for (let j = 0; j < COLOUR_IN_RANGE_BINS; j++) {
     const c = t[at + j]!
     if (c === 0) continue
+    // ∂x/∂c_j = (x̄_j − x s_j)/S, ∂y/∂c_j = (ȳ_j − y s_j)/S with s_j = x̄ + ȳ + z̄
+    const sj = CIE_X[j]! + CIE_Y[j]! + CIE_Z[j]!
+    const gx = (CIE_X[j]! - x * sj) / S, gy = (CIE_Y[j]! - y * sj) / S
+    varX += c * gx * gx; varY += c * gy * gy
     // ∂u′/∂c_j = (4x̄_j − u′d_j)/D, ∂v′/∂c_j = (9ȳ_j − v′d_j)/D
     const gu = (4 * CIE_X[j]! - u * CIE_D[j]!) / D, gv = (9 * CIE_Y[j]! - v * CIE_D[j]!) / D
     varU += c * gu * gu; varV += c * gv * gv; covUV += c * gu * gv
   }
-  return { x: X / S, y: Y / S, u, v, varU, varV, covUV }
+  return { x, y, u, v, varX, varY, varU, varV, covUV }
 }
 
 /** Δu′v′ of band b against the reference band a, with its delta-method σ (bands disjoint: variances add). */
@@ -93,6 +98,7 @@ export function colourOf(t: Tally): ColourResult | null {
   for (let b = 0; b < COLOUR_BANDS; b++) bands.push(rowColour(t, b))
   const ref = bands[0] ?? null
   const bandCentersDeg: number[] = [], x: Array<number | null> = [], y: Array<number | null> = []
+  const xStdErr: Array<number | null> = [], yStdErr: Array<number | null> = []
   const uPrime: Array<number | null> = [], vPrime: Array<number | null> = [], uPrimeStdErr: Array<number | null> = [], vPrimeStdErr: Array<number | null> = []
   const deltaUv: Array<number | null> = [], deltaUvStdErr: Array<number | null> = []
   const photopicRelative: Array<number | null> = [], photopicRelativeStdErr: Array<number | null> = []
@@ -102,6 +108,7 @@ export function colourOf(t: Tally): ColourResult | null {
     const centre = COLOUR_BAND_DEG * b + COLOUR_BAND_DEG / 2
     bandCentersDeg.push(centre)
     x.push(c ? c.x : null); y.push(c ? c.y : null)
+    xStdErr.push(c ? Math.sqrt(c.varX) : null); yStdErr.push(c ? Math.sqrt(c.varY) : null)
     uPrime.push(c ? c.u : null); vPrime.push(c ? c.v : null)
     uPrimeStdErr.push(c ? Math.sqrt(c.varU) : null); vPrimeStdErr.push(c ? Math.sqrt(c.varV) : null)
     if (c && ref) {
@@ -135,7 +142,7 @@ export function colourOf(t: Tally): ColourResult | null {
   return {
     bandWidthDeg: COLOUR_BAND_DEG,
     bandCentersDeg,
-    x, y, uPrime, vPrime, uPrimeStdErr, vPrimeStdErr, deltaUv, deltaUvStdErr, photopicRelative, photopicRelativeStdErr,
+    x, y, xStdErr, yStdErr, uPrime, vPrime, uPrimeStdErr, vPrimeStdErr, deltaUv, deltaUvStdErr, photopicRelative, photopicRelativeStdErr,
     maxDeltaUvTo60: maxD,
     maxDeltaUvTo60StdErr: maxDErr,
     photopicOnAxisRelative: axis.value / axisLamb,

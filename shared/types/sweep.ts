@@ -63,10 +63,15 @@ export type SweepAxis = z.infer<typeof sweepAxisSchema>
 
 /**
  * Figures a sweep can rank its cells by. pixelOnAxisGain: on-axis light over the pixel against the flat device (disc or
- * rectangle sources only).
+ * rectangle sources only). With an emission spectrum only: maxDeltaUvTo60, the largest colour shift Δu′v′ over 0–60°
+ * (lower is better), and photopicOnAxisGain, photopic on-axis luminance over the flat device's.
  */
-export const figureSchema = z.enum(['extraction', 'enhancement', 'onAxisLuminance', 'pixelOnAxisGain'])
+export const figureSchema = z.enum(['extraction', 'enhancement', 'onAxisLuminance', 'pixelOnAxisGain', 'maxDeltaUvTo60', 'photopicOnAxisGain'])
 export type Figure = z.infer<typeof figureSchema>
+/** Figures whose best cell has the lowest value. */
+export const LOWER_IS_BETTER_FIGURES: readonly string[] = ['maxDeltaUvTo60']
+/** Figures that need `emitter.spectrum` (colour out of the trace). */
+export const SPECTRUM_FIGURES: readonly string[] = ['maxDeltaUvTo60', 'photopicOnAxisGain']
 
 /**
  * How much tracing a run or a cell gets: a fixed ray count, or a target standard error on the extraction that

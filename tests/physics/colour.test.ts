@@ -51,9 +51,9 @@ describe('colour of the traced light', () => {
     const t = createTally(true)
     traceRange(packScene(sc), 0, 400_000, 901, t)
     const launched = rowColour(t, COLOUR_LAUNCH_ROW)!
-    // x, y of the counts: table rounding (1e-3) plus the counts' noise (σ of x by the same delta method ≈ σ of u′ scale)
-    expect(Math.abs(launched.x - 1 / 3)).toBeLessThan(1e-3 + K_SIGMA * Math.sqrt(launched.varU))
-    expect(Math.abs(launched.y - 1 / 3)).toBeLessThan(1e-3 + K_SIGMA * Math.sqrt(launched.varV))
+    // x, y of the counts: table rounding (1e-3) plus the counts' noise (σ of x, y by the delta method)
+    expect(Math.abs(launched.x - 1 / 3)).toBeLessThan(1e-3 + K_SIGMA * Math.sqrt(launched.varX))
+    expect(Math.abs(launched.y - 1 / 3)).toBeLessThan(1e-3 + K_SIGMA * Math.sqrt(launched.varY))
     const c = r.colour!
     const want = (KM_LM_PER_W * sum(CIE_Y)) / 81
     expectWithinSigma('efficacy (lm/W)', c.luminousEfficacyLmPerW, want, Math.hypot(c.luminousEfficacyStdErrLmPerW, 0.1))

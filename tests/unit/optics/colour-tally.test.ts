@@ -80,6 +80,7 @@ describe('colour figures of known counts', () => {
     expect(c.u).toBeCloseTo((4 * X) / (X + 15 * Y + 3 * Z), 14)
     expect(c.v).toBeCloseTo((9 * Y) / (X + 15 * Y + 3 * Z), 14)
     expect(c.varU).toBeCloseTo(0, 20)
+    expect(c.varX).toBeCloseTo(0, 20)
     expect(c.varV).toBeCloseTo(0, 20)
   })
   it('two wavelengths: the delta-method variance of u′ equals Σ c_j (∂u′/∂c_j)² by finite differences', () => {
@@ -96,8 +97,8 @@ describe('colour figures of known counts', () => {
     expect(c.varU / (300 * g1 * g1 + 500 * g2 * g2)).toBeCloseTo(1, 6)
   })
   it('Δu′v′ and its σ: the projection of the two bands\' variances on the difference', () => {
-    const a = { x: 0, y: 0, u: 0.2, v: 0.5, varU: 1e-6, varV: 4e-6, covUV: 0 }
-    const b = { x: 0, y: 0, u: 0.23, v: 0.54, varU: 2e-6, varV: 1e-6, covUV: 0 }
+    const a = { x: 0, y: 0, varX: 0, varY: 0, u: 0.2, v: 0.5, varU: 1e-6, varV: 4e-6, covUV: 0 }
+    const b = { x: 0, y: 0, varX: 0, varY: 0, u: 0.23, v: 0.54, varU: 2e-6, varV: 1e-6, covUV: 0 }
     const d = deltaUvOf(b, a)
     expect(d.value).toBeCloseTo(0.05, 12)
     // (0.6² · 3e-6 + 0.8² · 5e-6)^½
@@ -111,5 +112,20 @@ describe('colour figures of known counts', () => {
     expect(c.photopicOnAxisRelativeStdErr).toBeCloseTo(0, 12)
     expect(c.luminousEfficacyLmPerW).toBeCloseTo(683, 10)
     expect(c.maxDeltaUvTo60).toBe(0)
+  })
+})
+
+describe('colour exports', () => {
+  it('trajectory rows every 10° to 80° and the per-band CSV of device and flat companion, σ beside each value', async () => {
+    const { colourCsv, colourTrajectory, COLOUR_CSV_HEADER } = await import('../../../app/utils/exportData')
+    const r = summarize(traceChunk(prepareRun(scenarioSchema.parse(spectral)), 0, 20_000, 5), 5)
+    const rows = colourTrajectory(r.colour!, 80, 5)
+    expect(rows.map((x) => x.angleDeg)).toEqual([1, 11, 21, 31, 41, 51, 61, 71])
+    expect(rows[0]!.deltaUv).toBe(0)
+    expect(rows[3]!.uPrimeStdErr!).toBeGreaterThan(0)
+    expect(rows[3]!.xStdErr!).toBeGreaterThan(0)
+    const lines = colourCsv(r.colour!, r.planarColour!).trim().split('\r\n')
+    expect(lines[0]).toBe(COLOUR_CSV_HEADER.map((h) => `"${h}"`).join(','))
+    expect(lines).toHaveLength(1 + 2 * 45)
   })
 })
