@@ -33,7 +33,7 @@ describe('colour figures for sweeps', () => {
     expect(figureOf(mono, 'maxDeltaUvTo60')).toBeNull()
   })
   it('best cell: lowest colour shift, highest photopic gain', () => {
-    const cell = (i: number, d: number, g: number) => ({ cellIndex: i, status: 'done', summary: { maxDeltaUvTo60: d, maxDeltaUvTo60StdErr: 0.001, photopicOnAxisGain: g, photopicOnAxisGainStdErr: 0.01 } as unknown as CellSummary })
+    const cell = (i: number, d: number, g: number) => ({ cellIndex: i, status: 'done' as const, summary: { maxDeltaUvTo60: d, maxDeltaUvTo60StdErr: 0.001, photopicOnAxisGain: g, photopicOnAxisGainStdErr: 0.01 } as unknown as CellSummary })
     const cells = [cell(0, 0.02, 1.2), cell(1, 0.005, 1.1), cell(2, 0.03, 1.6)]
     expect(bestCell(cells, 'maxDeltaUvTo60')).toBe(1)
     expect(bestCell(cells, 'photopicOnAxisGain')).toBe(2)
