@@ -4,7 +4,7 @@
 // Usage: npm run bench -- [--rays N] [name ...]
 import { availableParallelism, cpus, loadavg } from 'node:os'
 import { scenarioSchema } from '../shared/types/scenario'
-import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk } from '../shared/optics'
+import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk, traceRange, type RunScenes } from '../shared/optics'
 import { createTracePoolReady, traceOnPool } from '../scripts/trace-pool'
 import { benchScenarios } from './scenarios'
 
@@ -48,4 +48,42 @@ for (const name of selected) {
   console.log(`${name.padEnd(30)} in-process (tsx, unbundled) ${fmt(inProc)} rays/s | pool 1 thread ${fmt(poolRate[0]!)} | pool ${all} threads ${fmt(poolRate[1]!)} rays/s (×${(poolRate[1]! / poolRate[0]!).toFixed(2)})`)
 }
 for (const p of pools.values()) await p.destroy()
+
+// Polarised and spectral against averaged monochrome on the issue's example, interleaved in-process: rounds of
+// 100 000 rays (device + companion) of each variant in turn, rays/s by this process's CPU time (other work on a
+// shared machine slows the clock, much less the CPU time), median over the rounds. The spectral variant is timed
+// with its colour tally and, for the tally's cost, with plain tallies (createTally(): nothing colour is counted).
+{
+  const ref = 'hex-hemisphere-close-packed'
+  const variants: Array<[string, string, boolean]> = [
+    ['averaged', ref, false],
+    ['polarized', 'hex-hemisphere-close-packed-polarized', false],
+    ['polarized + spectral', 'hex-hemisphere-close-packed-polarized-spectral', true],
+    ['polarized + spectral, no colour tally', 'hex-hemisphere-close-packed-polarized-spectral', false],
+  ]
+  const runs = variants.map(([, n]) => prepareRun(scenarioSchema.parse(benchScenarios[n]!)))
+  const roundRays = 100_000, rounds = Math.max(5, Math.round(rays / roundRays / 2))
+  // traceChunk's work (device on stream 0, companion on stream 1), with or without the colour block
+  const traceOnce = (run: RunScenes, colour: boolean, seed: number) => {
+    for (const [f, c] of planChunks(roundRays)) {
+      traceRange(run.device, f, c, seed, createTally(colour))
+      if (run.planar) traceRange(run.planar, f, c, seed, createTally(colour), undefined, 1)
+    }
+  }
+  runs.forEach((r, i) => traceOnce(r, variants[i]![2], 97)) // warm-up
+  const rates: number[][] = variants.map(() => [])
+  for (let k = 0; k < rounds; k++) {
+    runs.forEach((r, i) => {
+      const c0 = process.cpuUsage()
+      traceOnce(r, variants[i]![2], 200 + k)
+      const u = process.cpuUsage(c0)
+      rates[i]!.push(roundRays / ((u.user + u.system) / 1e6))
+    })
+  }
+  const median = (a: number[]) => { const b = [...a].sort((x, y) => x - y); return b[b.length >> 1]! }
+  const m = rates.map(median)
+  console.log(`interleaved, ${rounds} rounds × ${roundRays} rays, rays/s by CPU time (median):`)
+  variants.forEach(([label], i) => console.log(`  ${label.padEnd(40)} ${fmt(m[i]!)} rays/s  ${(m[i]! / m[0]!).toFixed(3)} × averaged`))
+  console.log(`  polarized + spectral / averaged = ${(m[2]! / m[0]!).toFixed(3)} (target ≥ 0.6); colour tally costs ${(100 * (1 - m[2]! / m[3]!)).toFixed(1)} %`)
+}
 console.log(`load average (1 min) at the end: ${loadavg()[0]!.toFixed(2)} on ${all} cores — figures are depressed when it exceeds ~0.3`)

@@ -2,7 +2,7 @@
 // tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
 // A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
 import { DEFAULT_WAVELENGTH_NM, extinctionAt, indexAt, type IndexModel, type Scenario } from '../types/scenario'
-import { buildSpectralBlock, SP_AL, SP_AS, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID } from './spectral'
+import { buildSpectralBlock, SP_AL, SP_AS, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID, spectralSlot } from './spectral'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
@@ -130,7 +130,12 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   s[S_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! / factor
   s[S_LENS_ABSORPTION_PER_UM] = s[S_LENS_ABSORPTION_PER_UM]! / factor
   const sp = s[S_SPECTRAL_OFFSET]!
-  if (sp > 0) for (let j = SP_AS; j < SP_AL + SPECTRAL_GRID + 1; j++) s[sp + j] = s[sp + j]! / factor
+  if (sp > 0) {
+    for (let j = 0; j <= SPECTRAL_GRID; j++) {
+      const qs = sp + spectralSlot(j, SP_AS), ql = sp + spectralSlot(j, SP_AL)
+      s[qs] = s[qs]! / factor; s[ql] = s[ql]! / factor
+    }
+  }
   s[S_PITCH_UM] = s[S_PITCH_UM]! * factor
   s[S_LENS_RADIUS_UM] = s[S_LENS_RADIUS_UM]! * factor
   s[S_SAG_UM] = s[S_SAG_UM]! * factor

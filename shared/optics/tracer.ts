@@ -20,7 +20,7 @@ import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-ca
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
 import { fresnelReflects, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn } from './crossings'
 import { wrapToSite } from './lattice'
-import { SP_AL, SP_AS, SP_CDF, SP_NE, SP_NL, SP_NS, SPECTRAL_GRID } from './spectral'
+import { SP_AL, SP_AS, SP_CDF, SP_GUIDE, SP_NE, SP_NL, SP_NODES, SP_NS, SP_STRIDE, SPECTRAL_GRID } from './spectral'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
@@ -71,7 +71,7 @@ export function traceRange(
   const nE0 = scene[S_N_EMITTER]!, nS0 = scene[S_N_SUBSTRATE]!, nL0 = scene[S_N_LENS]!
   const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
   const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
-  const spCdf = spAt + SP_CDF
+  const spNodes = spAt + SP_NODES, spGuide = spAt + SP_GUIDE // node 0 and the guide table
   // colour counts (film.ts scoreColour) only with a spectrum and a tally that has the block
   const colour = spAt > 0 && hasColour(tally)
   const launchRow = T_COLOUR + COLOUR_LAUNCH_ROW * COLOUR_BINS, axisRow = T_COLOUR + COLOUR_AXIS_ROW * COLOUR_BINS
@@ -114,26 +114,28 @@ export function traceRange(
     let dx = v3[0]!, dy = v3[1]!, dz = v3[2]!
     if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
     let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
-    let wl = 550 // the ray's wavelength, nm (read only for the colour counts)
+    let wb = 0 // the ray's colour bin (tally.ts colourBinOf; read only for the colour counts)
     if (spAt > 0) {
       // the ray's wavelength, and its indices and absorption there
       // spectral.ts sampleWavelength and spectralValue, inlined by hand (same operations in the same order)
       const uw = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
-      let lo = 0, hi = SPECTRAL_GRID
-      while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (scene[spCdf + mid]! <= uw) lo = mid; else hi = mid }
-      const ca = scene[spCdf + lo]!, cb = scene[spCdf + lo + 1]!
+      let lo = scene[spGuide + ((uw * SPECTRAL_GRID) | 0)]! | 0
+      while (scene[spNodes + (lo + 1) * SP_STRIDE + SP_CDF]! <= uw) lo++
+      const q = spNodes + lo * SP_STRIDE // node lo; node lo + 1 is SP_STRIDE further
+      const ca = scene[q + SP_CDF]!, cb = scene[q + SP_STRIDE + SP_CDF]!
       const f = cb > ca ? (uw - ca) / (cb - ca) : 0
-      wl = scene[spAt]! + (lo + f) * scene[spAt + 1]!
-      let q = spAt + SP_NE + lo, va = scene[q]!
-      nE = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_NS + lo; va = scene[q]!
-      nS = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_NL + lo; va = scene[q]!
-      nL = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_AS + lo; va = scene[q]!
-      alpha = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_AL + lo; va = scene[q]!
-      alphaL = va + f * (scene[q + 1]! - va)
+      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - COLOUR_FIRST_EDGE_NM) / COLOUR_BIN_NM // colourBinOf(λ), inlined
+      wb = wf >= 0 && wf < COLOUR_IN_RANGE_BINS ? wf | 0 : COLOUR_IN_RANGE_BINS
+      let va = scene[q + SP_NE]!
+      nE = va + f * (scene[q + SP_STRIDE + SP_NE]! - va)
+      va = scene[q + SP_NS]!
+      nS = va + f * (scene[q + SP_STRIDE + SP_NS]! - va)
+      va = scene[q + SP_NL]!
+      nL = va + f * (scene[q + SP_STRIDE + SP_NL]! - va)
+      va = scene[q + SP_AS]!
+      alpha = va + f * (scene[q + SP_STRIDE + SP_AS]! - va)
+      va = scene[q + SP_AL]!
+      alphaL = va + f * (scene[q + SP_STRIDE + SP_AL]! - va)
     }
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
@@ -345,9 +347,7 @@ export function traceRange(
       default: nUnres++; break
     }
     if (colour) {
-      // film.ts colourBinOf and scoreColour, inlined by hand
-      const w = (wl - COLOUR_FIRST_EDGE_NM) / COLOUR_BIN_NM
-      const wb = w >= 0 && w < COLOUR_IN_RANGE_BINS ? w | 0 : COLOUR_IN_RANGE_BINS
+      // film.ts scoreColour, inlined by hand
       tally[launchRow + wb] = tally[launchRow + wb]! + 1
       if (bt >= 0) {
         const b = T_COLOUR + (bt >> 1) * COLOUR_BINS + wb
