@@ -1,7 +1,7 @@
 // npm run bench: rays/s on the named reference scenarios, in-process on one thread and on the piscina pool at 1
 // thread and at all threads. "rays/s" counts device rays; each includes tracing its planar companion ray (the
 // enhancement's reference), exactly as a real run does. Figures depend on machine load: re-run when quiet.
-// Usage: npm run bench -- [--rays N] [name ...]
+// Usage: npm run bench -- [--rays N] [name ...]; the polarised/spectral ratio section (15 interleaved rounds) always runs.
 import { availableParallelism, cpus, loadavg } from 'node:os'
 import { scenarioSchema } from '../shared/types/scenario'
 import { createTally, mergeRunTallies, planChunks, prepareRun, traceChunk, traceRange, type RunScenes } from '../shared/optics'
@@ -62,7 +62,7 @@ for (const p of pools.values()) await p.destroy()
     ['polarized + spectral, no colour tally', 'hex-hemisphere-close-packed-polarized-spectral', false],
   ]
   const runs = variants.map(([, n]) => prepareRun(scenarioSchema.parse(benchScenarios[n]!)))
-  const roundRays = 100_000, rounds = Math.max(5, Math.round(rays / roundRays / 2))
+  const roundRays = 100_000, rounds = 15
   // traceChunk's work (device on stream 0, companion on stream 1), with or without the colour block
   const traceOnce = (run: RunScenes, colour: boolean, seed: number) => {
     for (const [f, c] of planChunks(roundRays)) {

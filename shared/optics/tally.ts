@@ -42,6 +42,8 @@ export const COLOUR_BINS = 82
 export const COLOUR_IN_RANGE_BINS = 81
 export const COLOUR_FIRST_EDGE_NM = 377.5
 export const COLOUR_BIN_NM = 5
+/** 1/COLOUR_BIN_NM (exact enough: the bin of λ is defined by this product, in the model and the fused loop alike). */
+export const COLOUR_BINS_PER_NM = 0.2
 export const COLOUR_AXIS_ROW = COLOUR_BANDS
 export const COLOUR_LAUNCH_ROW = COLOUR_BANDS + 1
 export const COLOUR_ROWS = COLOUR_BANDS + 2
@@ -63,7 +65,7 @@ export function hasColour(t: Tally): boolean {
 
 /** Colour bin of a wavelength (nm): 0–80 inside 377.5–782.5 nm, 81 outside. */
 export function colourBinOf(wavelengthNm: number): number {
-  const w = (wavelengthNm - COLOUR_FIRST_EDGE_NM) / COLOUR_BIN_NM
+  const w = (wavelengthNm - COLOUR_FIRST_EDGE_NM) * COLOUR_BINS_PER_NM
   return w >= 0 && w < COLOUR_IN_RANGE_BINS ? w | 0 : COLOUR_IN_RANGE_BINS
 }
 

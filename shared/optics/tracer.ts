@@ -30,7 +30,7 @@ import {
   S_THICKNESS_UM, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
-  COLOUR_AXIS_ROW, COLOUR_BIN_NM, COLOUR_BINS, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, T_COLOUR,
+  COLOUR_AXIS_ROW, COLOUR_BINS, COLOUR_BINS_PER_NM, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, T_COLOUR,
   PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
@@ -124,7 +124,7 @@ export function traceRange(
       const q = spNodes + lo * SP_STRIDE // node lo; node lo + 1 is SP_STRIDE further
       const ca = scene[q + SP_CDF]!, cb = scene[q + SP_STRIDE + SP_CDF]!
       const f = cb > ca ? (uw - ca) / (cb - ca) : 0
-      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - COLOUR_FIRST_EDGE_NM) / COLOUR_BIN_NM // colourBinOf(λ), inlined
+      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - COLOUR_FIRST_EDGE_NM) * COLOUR_BINS_PER_NM // colourBinOf(λ), inlined
       wb = wf >= 0 && wf < COLOUR_IN_RANGE_BINS ? wf | 0 : COLOUR_IN_RANGE_BINS
       let va = scene[q + SP_NE]!
       nE = va + f * (scene[q + SP_STRIDE + SP_NE]! - va)
