@@ -72,9 +72,13 @@ export function traceRange(
   const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
   const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
   const spNodes = spAt + SP_NODES, spGuide = spAt + SP_GUIDE // node 0 and the guide table
+  // node fields relative to a node, and the next node's (locals: imported bindings are not constant-folded)
+  const stride = SP_STRIDE, fCdf = SP_CDF, fNE = SP_NE, fNS = SP_NS, fNL = SP_NL, fAS = SP_AS, fAL = SP_AL, grid = SPECTRAL_GRID
   // colour counts (film.ts scoreColour) only with a spectrum and a tally that has the block
   const colour = spAt > 0 && hasColour(tally)
   const launchRow = T_COLOUR + COLOUR_LAUNCH_ROW * COLOUR_BINS, axisRow = T_COLOUR + COLOUR_AXIS_ROW * COLOUR_BINS
+  const colourBins = COLOUR_BINS, firstEdgeNm = COLOUR_FIRST_EDGE_NM, binsPerNm = COLOUR_BINS_PER_NM, inRange = COLOUR_IN_RANGE_BINS
+  const axisBins = PIXEL_AXIS_BINS, colourAt = T_COLOUR
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -119,23 +123,23 @@ export function traceRange(
       // the ray's wavelength, and its indices and absorption there
       // spectral.ts sampleWavelength and spectralValue, inlined by hand (same operations in the same order)
       const uw = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
-      let lo = scene[spGuide + ((uw * SPECTRAL_GRID) | 0)]! | 0
-      while (scene[spNodes + (lo + 1) * SP_STRIDE + SP_CDF]! <= uw) lo++
-      const q = spNodes + lo * SP_STRIDE // node lo; node lo + 1 is SP_STRIDE further
-      const ca = scene[q + SP_CDF]!, cb = scene[q + SP_STRIDE + SP_CDF]!
+      let lo = scene[spGuide + ((uw * grid) | 0)]! | 0
+      while (scene[spNodes + (lo + 1) * stride + fCdf]! <= uw) lo++
+      const q = spNodes + lo * stride, r = q + stride // nodes lo and lo + 1
+      const ca = scene[q + fCdf]!, cb = scene[r + fCdf]!
       const f = cb > ca ? (uw - ca) / (cb - ca) : 0
-      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - COLOUR_FIRST_EDGE_NM) * COLOUR_BINS_PER_NM // colourBinOf(λ), inlined
-      wb = wf >= 0 && wf < COLOUR_IN_RANGE_BINS ? wf | 0 : COLOUR_IN_RANGE_BINS
-      let va = scene[q + SP_NE]!
-      nE = va + f * (scene[q + SP_STRIDE + SP_NE]! - va)
-      va = scene[q + SP_NS]!
-      nS = va + f * (scene[q + SP_STRIDE + SP_NS]! - va)
-      va = scene[q + SP_NL]!
-      nL = va + f * (scene[q + SP_STRIDE + SP_NL]! - va)
-      va = scene[q + SP_AS]!
-      alpha = va + f * (scene[q + SP_STRIDE + SP_AS]! - va)
-      va = scene[q + SP_AL]!
-      alphaL = va + f * (scene[q + SP_STRIDE + SP_AL]! - va)
+      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - firstEdgeNm) * binsPerNm // colourBinOf(λ), inlined
+      wb = wf >= 0 && wf < inRange ? wf | 0 : inRange
+      let va = scene[q + fNE]!
+      nE = va + f * (scene[r + fNE]! - va)
+      va = scene[q + fNS]!
+      nS = va + f * (scene[r + fNS]! - va)
+      va = scene[q + fNL]!
+      nL = va + f * (scene[r + fNL]! - va)
+      va = scene[q + fAS]!
+      alpha = va + f * (scene[r + fAS]! - va)
+      va = scene[q + fAL]!
+      alphaL = va + f * (scene[r + fAL]! - va)
     }
     let med = MED_EMITTER
     let onCap = false, excludeSelf = false
@@ -350,9 +354,9 @@ export function traceRange(
       // film.ts scoreColour, inlined by hand
       tally[launchRow + wb] = tally[launchRow + wb]! + 1
       if (bt >= 0) {
-        const b = T_COLOUR + (bt >> 1) * COLOUR_BINS + wb
+        const b = colourAt + (bt >> 1) * colourBins + wb
         tally[b] = tally[b]! + 1
-        if (bt < PIXEL_AXIS_BINS) tally[axisRow + wb] = tally[axisRow + wb]! + 1
+        if (bt < axisBins) tally[axisRow + wb] = tally[axisRow + wb]! + 1
       }
     }
   }
