@@ -107,6 +107,13 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
   for (const d of r.luminance.directions ?? []) {
     lines.push(`reciprocal luminance θ ${String(d.thetaDeg).padStart(2)}°, φ ${d.phiDeg}°: ${pm(d.relative, d.relativeStdErr, 4)} × Lambertian of the emitted flux`)
   }
+  if (r.colour) {
+    const c = r.colour, f = r.planarColour
+    lines.push(
+      `colour (CIE 1931)    on axis x ${c.x[0]?.toFixed(4) ?? '—'}, y ${c.y[0]?.toFixed(4) ?? '—'}; largest Δu′v′ to 60° ${pm(c.maxDeltaUvTo60, c.maxDeltaUvTo60StdErr, 4)}${f ? ` (planar ${pm(f.maxDeltaUvTo60, f.maxDeltaUvTo60StdErr, 4)})` : ''}`,
+      `photometry           on-axis ${pm(c.photopicOnAxisRelative, c.photopicOnAxisRelativeStdErr, 3)} × Lambertian (photopic), gain ${pm(r.photopicOnAxisGain ?? NaN, r.photopicOnAxisGainStdErr ?? NaN, 3)} × planar, efficacy ${pm(c.luminousEfficacyLmPerW, c.luminousEfficacyStdErrLmPerW, 1)} lm/W`,
+    )
+  }
   lines.push('intensity in air (1/sr per emitted ray, azimuth-averaged):')
   for (const th of [0, 10, 20, 30, 40, 50, 60, 70, 80]) {
     lines.push(`  θ ${String(th).padStart(2)}–${th + 1}°        ${pm(r.intensity.perSteradian[th]!, r.intensity.perSteradianStdErr[th]!, 4)} /sr   L/L_Lamb ${pm(r.luminance.relative[th]!, r.luminance.relativeStdErr[th]!, 3)}`)

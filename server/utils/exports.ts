@@ -1,5 +1,6 @@
 // Result exports of one run cell: JSON (everything, as the cell route returns it, plus the run's context) and a
-// long-format CSV (one value per line: section, theta_deg, phi_deg, quantity, value, std_err) that pandas, R or a
+// long-format CSV (one value per line: section, theta_deg, phi_deg, quantity, value, std_err; with a spectrum also
+// the colour per 2° band, sections colour / planar_colour) that pandas, R or a
 // spreadsheet pivot reads as it is. User text is always a quoted field, formula starts neutralised
 // (shared/utils/csv-cell.ts); the metadata lines are rows whose first field starts with #.
 import type { TraceResult } from '../../shared/types/result'
@@ -28,6 +29,26 @@ export function resultCsv(run: Pick<Run, 'name' | 'designName' | 'designVersion'
     row('profile', t, null, 'intensity_per_sr', I.perSteradian[b]!, I.perSteradianStdErr[b]!)
     row('profile', t, null, 'luminance_relative', r.luminance.relative[b]!, r.luminance.relativeStdErr[b]!)
   })
+  // colour over angle (with an emission spectrum): per 2° band of the device (section colour) and of its flat
+  // companion (planar_colour); spectra at a few angles as relative_power_<nm>nm (peak = 1, no σ)
+  for (const [section, c] of [['colour', r.colour], ['planar_colour', r.planarColour]] as const) {
+    if (!c) continue
+    row(section, null, null, 'max_delta_uv_to_60', c.maxDeltaUvTo60, c.maxDeltaUvTo60StdErr)
+    row(section, null, null, 'photopic_on_axis_relative', c.photopicOnAxisRelative, c.photopicOnAxisRelativeStdErr)
+    row(section, null, null, 'luminous_efficacy_lm_per_w', c.luminousEfficacyLmPerW, c.luminousEfficacyStdErrLmPerW)
+    c.bandCentersDeg.forEach((t, b) => {
+      row(section, t, null, 'x', c.x[b] ?? null, c.xStdErr?.[b] ?? null)
+      row(section, t, null, 'y', c.y[b] ?? null, c.yStdErr?.[b] ?? null)
+      row(section, t, null, 'u_prime', c.uPrime[b] ?? null, c.uPrimeStdErr[b] ?? null)
+      row(section, t, null, 'v_prime', c.vPrime[b] ?? null, c.vPrimeStdErr[b] ?? null)
+      row(section, t, null, 'delta_uv', c.deltaUv[b] ?? null, c.deltaUvStdErr[b] ?? null)
+      row(section, t, null, 'photopic_luminance_relative', c.photopicRelative[b] ?? null, c.photopicRelativeStdErr[b] ?? null)
+    })
+    c.spectra.anglesDeg.forEach((t, k) => {
+      c.wavelengthCentersNm.forEach((nm, j) => row(`${section}_spectrum`, t, null, `relative_power_${nm}nm`, c.spectra.relative[k]![j]!, null))
+    })
+  }
+  if (r.photopicOnAxisGain !== undefined && r.photopicOnAxisGain !== null) row('summary', null, null, 'photopic_on_axis_gain', r.photopicOnAxisGain, r.photopicOnAxisGainStdErr ?? null)
   const { thetaBins, phiBins, phiBinWidthDeg } = I.map
   for (let b = 0; b < thetaBins; b++) {
     for (let p = 0; p < phiBins; p++) {

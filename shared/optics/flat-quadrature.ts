@@ -30,7 +30,7 @@ import {
   SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import { PROFILE_GRID } from './sampling'
-import { SP_AS, SP_CDF, SP_NE, SP_NS, SPECTRAL_GRID } from './spectral'
+import { SP_AS, SP_CDF, SP_NE, SP_NS, SPECTRAL_GRID, spectralSlot } from './spectral'
 import { THETA_BINS } from './tally'
 
 /** The planar block of a result, computed by quadrature (σ = 0: no sampling). */
@@ -429,15 +429,15 @@ export function flatOutcomes(scene: PackedScene): Float64Array {
   const K = SPECTRAL_GRID
   let constant = true
   for (let j = 1; j <= K && constant; j++) {
-    constant = scene[at + SP_NE + j] === scene[at + SP_NE] && scene[at + SP_NS + j] === scene[at + SP_NS] && scene[at + SP_AS + j] === scene[at + SP_AS]
+    constant = scene[at + spectralSlot(j, SP_NE)] === scene[at + spectralSlot(0, SP_NE)] && scene[at + spectralSlot(j, SP_NS)] === scene[at + spectralSlot(0, SP_NS)] && scene[at + spectralSlot(j, SP_AS)] === scene[at + spectralSlot(0, SP_AS)]
   }
-  if (constant) { flatAt({ ...base, nE: scene[at + SP_NE]!, nS: scene[at + SP_NS]!, alphaPerUm: scene[at + SP_AS]! }, l, out, 1); return out }
+  if (constant) { flatAt({ ...base, nE: scene[at + spectralSlot(0, SP_NE)]!, nS: scene[at + spectralSlot(0, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(0, SP_AS)]! }, l, out, 1); return out }
   // The outcome is a smooth function of wavelength (through n_e, n_s, α): evaluated every SPECTRAL_STRIDE grid
   // nodes and carried to each cell's middle by 4-point Lagrange interpolation, so Σ_cells w·f(mid) = Σ_nodes c·f(node).
   const g = SPECTRAL_STRIDE, E = K / g + 1
   const coef = new Float64Array(E)
   for (let j = 0; j < K; j++) {
-    const w = scene[at + SP_CDF + j + 1]! - scene[at + SP_CDF + j]!
+    const w = scene[at + spectralSlot(j + 1, SP_CDF)]! - scene[at + spectralSlot(j, SP_CDF)]!
     if (!(w > 0)) continue
     const x = (j + 0.5) / g
     const e0 = Math.min(Math.max(Math.floor(x) - 1, 0), E - 4)
@@ -450,7 +450,7 @@ export function flatOutcomes(scene: PackedScene): Float64Array {
   for (let e = 0; e < E; e++) {
     if (coef[e] === 0) continue
     const j = e * g
-    flatAt({ ...base, nE: scene[at + SP_NE + j]!, nS: scene[at + SP_NS + j]!, alphaPerUm: scene[at + SP_AS + j]! }, l, out, coef[e]!)
+    flatAt({ ...base, nE: scene[at + spectralSlot(j, SP_NE)]!, nS: scene[at + spectralSlot(j, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(j, SP_AS)]! }, l, out, coef[e]!)
   }
   return out
 }

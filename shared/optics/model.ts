@@ -2,10 +2,10 @@
 // recorder of every ray's path (the browser preview uses it). Same arguments and the same tally as the fused
 // traceRange (tracer.ts), bit for bit; slower, since it favours reading over speed.
 import { createRay, resetRay } from './ray'
-import { scoreExit } from './film'
+import { scoreColour, scoreExit } from './film'
 import { launch, stackOf, traceRay, type RayRecorder } from './steps'
 import { SOURCE_EXTENDED, type PackedScene } from './scene'
-import { T_EVENTS, T_EXTRACTED, T_PIXEL_RAYS, T_RAYS, type Tally } from './tally'
+import { colourBinOf, hasColour, T_EVENTS, T_EXTRACTED, T_PIXEL_RAYS, T_RAYS, type Tally } from './tally'
 
 export type { RayRecorder } from './steps'
 
@@ -18,6 +18,8 @@ export function traceRangeModel(scene: PackedScene, firstRay: number, rayCount: 
   streamId = 0, recorder?: RayRecorder, eventBudget = Infinity): number {
   const st = stackOf(scene)
   const ray = createRay()
+  // colour counts only for a scene with a spectrum and a tally that has the block (createTally(true))
+  const colour = st.spectralAt > 0 && hasColour(tally)
   let spent = 0
   for (let r = 0; r < rayCount; r++) {
     resetRay(ray, seed, streamId, firstRay + r)
@@ -28,7 +30,8 @@ export function traceRangeModel(scene: PackedScene, firstRay: number, rayCount: 
     spent += ray.events
     tally[T_EVENTS] = tally[T_EVENTS]! + ray.events
     tally[ray.end] = tally[ray.end]! + 1
-    if (ray.end === T_EXTRACTED) scoreExit(tally, ray.dx, ray.dy, ray.dz, ray.x + ray.ox, ray.y + ray.oy, st.source, st.sourceAUm, st.sourceBUm)
+    const bt = ray.end === T_EXTRACTED ? scoreExit(tally, ray.dx, ray.dy, ray.dz, ray.x + ray.ox, ray.y + ray.oy, st.source, st.sourceAUm, st.sourceBUm) : -1
+    if (colour) scoreColour(tally, colourBinOf(ray.wavelengthNm), bt)
     if (recorder !== undefined) recorder.finish(ray)
   }
   tally[T_RAYS] = tally[T_RAYS]! + rayCount

@@ -10,10 +10,11 @@ import { fresnelModeOf, scenarioSchema, type FresnelMode, type Scenario } from '
 import { applyThinFilm } from './thinfilm/result'
 import type { Losses, TraceResult } from '../types/result'
 import { flatCompanion, flatQuadratureApplies, type FlatCompanion } from './flat-quadrature'
-import { packScene, type PackedScene, S_HAS_LENS } from './scene'
+import { packScene, type PackedScene, S_HAS_LENS, S_SPECTRAL_OFFSET } from './scene'
 import { traceRange } from './tracer'
+import { colourOf } from './colour'
 import {
-  createTally, mergeTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  createTally, mergeTally, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 
@@ -39,7 +40,10 @@ export interface RunTallies {
 
 /** Whether a run of this scenario traces its planar companion (doubling its rays): lenses, and no quadrature for it. */
 export function tracesCompanion(sc: Scenario, companion: CompanionMethod = 'quadrature'): boolean {
-  return sc.lensArray !== null && (companion === 'traced' || !flatQuadratureApplies(sc))
+  // A sheet emitter with a spectrum traces its companion: the colour over angle of the flat device (planarColour,
+  // photopicOnAxisGain) comes from its counts, which the quadrature does not give.
+  const colourNeedsRays = sc.emitter.spectrum !== undefined && sc.emitter.thinFilm === undefined
+  return sc.lensArray !== null && (companion === 'traced' || !flatQuadratureApplies(sc) || colourNeedsRays)
 }
 
 export function prepareRun(sc: Scenario, opts: { companion?: CompanionMethod } = {}): RunScenes {
@@ -89,19 +93,25 @@ export function planChunks(rays: number, chunkRays = CHUNK_RAYS): Array<[number,
  */
 export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, seed: number, shouldStop?: () => boolean,
   eventBudget = Infinity): RunTallies {
-  const device = createTally()
+  // a scene with a spectrum gets the colour block (tally.ts); otherwise the tally is as before
+  const colour = run.device[S_SPECTRAL_OFFSET]! > 0
+  const device = createTally(colour)
   traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE, eventBudget)
   let planar: Tally | null = null
   if (run.planar) {
-    planar = createTally()
+    planar = createTally(colour)
     traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR, eventBudget)
   }
   return { device, planar }
 }
 
+/**
+ * Adds `src` into `dst`. A total made with createTally() takes chunks with the colour block: its tallies are
+ * widened in place of the fields (dst.device / dst.planar become new arrays, the colour block starting at zero).
+ */
 export function mergeRunTallies(dst: RunTallies, src: RunTallies): RunTallies {
-  mergeTally(dst.device, src.device)
-  if (dst.planar && src.planar) mergeTally(dst.planar, src.planar)
+  dst.device = mergeTally(widenTally(dst.device, src.device), src.device)
+  if (dst.planar && src.planar) dst.planar = mergeTally(widenTally(dst.planar, src.planar), src.planar)
   return dst
 }
 
@@ -110,7 +120,8 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const rays = opts.rays ?? sc.trace.rays
   const seed = opts.seed ?? sc.trace.seed
   const run = prepareRun(sc, { companion: opts.companion })
-  const total: RunTallies = { device: createTally(), planar: run.planar ? createTally() : null }
+  const colour = run.device[S_SPECTRAL_OFFSET]! > 0
+  const total: RunTallies = { device: createTally(colour), planar: run.planar ? createTally(colour) : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
   return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : companionFor(sc, total), sc)
 }
@@ -293,19 +304,51 @@ function summarizeCounts(t: RunTallies, seed: number, fresnel?: FresnelMode, fla
     pixel,
     enhancement: enh,
     enhancementStdErr: enhErr,
+    ...colourFields(t, planarBlock != null),
   }
 }
 
-/** One ArrayBuffer (transferable) holding the device tally, then the planar companion's when there is one. */
+/**
+ * Colour over angle of the device and its companion (colour.ts), present only when the tallies carry the colour
+ * block; photopicOnAxisGain = device over companion photopic on-axis luminance, σ as for `enhancement`
+ * (independent streams), exactly 1 with σ 0 for a planar device.
+ */
+function colourFields(t: RunTallies, exactCompanion = false): Pick<TraceResult, 'colour' | 'planarColour' | 'photopicOnAxisGain' | 'photopicOnAxisGainStdErr'> {
+  const colour = colourOf(t.device)
+  if (!colour) return {}
+  // A companion by quadrature carries no colour counts (runs with a spectrum trace theirs: tracesCompanion).
+  if (!t.planar && exactCompanion) return { colour, planarColour: null, photopicOnAxisGain: null, photopicOnAxisGainStdErr: null }
+  if (!t.planar) return { colour, planarColour: colour, photopicOnAxisGain: 1, photopicOnAxisGainStdErr: 0 }
+  const planarColour = colourOf(t.planar)
+  const a = colour.photopicOnAxisRelative, ae = colour.photopicOnAxisRelativeStdErr
+  const b = planarColour?.photopicOnAxisRelative ?? 0, be = planarColour?.photopicOnAxisRelativeStdErr ?? 0
+  const gain = b > 0 ? a / b : NaN
+  return {
+    colour,
+    planarColour,
+    photopicOnAxisGain: gain,
+    photopicOnAxisGainStdErr: a > 0 && b > 0 ? gain * Math.sqrt((ae / a) ** 2 + (be / b) ** 2) : NaN,
+  }
+}
+
+/**
+ * One ArrayBuffer (transferable) holding the device tally, then the planar companion's when there is one. Both have
+ * the same layout, with or without the colour block; the four possible lengths (1 or 2 × TALLY_LENGTH or
+ * SPECTRAL_TALLY_LENGTH) are all different, so the length alone says which.
+ */
 export function runTalliesToBuffer(t: RunTallies): ArrayBuffer {
-  const all = new Float64Array(t.planar ? 2 * TALLY_LENGTH : TALLY_LENGTH)
+  const L = t.device.length
+  const all = new Float64Array(t.planar ? 2 * L : L)
   all.set(t.device, 0)
-  if (t.planar) all.set(t.planar, TALLY_LENGTH)
+  if (t.planar) all.set(t.planar, L)
   return all.buffer
 }
 
 export function runTalliesFromBuffer(buf: ArrayBuffer | ArrayBufferLike): RunTallies {
   const all = new Float64Array(buf)
-  if (all.length !== TALLY_LENGTH && all.length !== 2 * TALLY_LENGTH) throw new Error(`run buffer has ${all.length} numbers, expected ${TALLY_LENGTH} or ${2 * TALLY_LENGTH}`)
-  return { device: all.subarray(0, TALLY_LENGTH), planar: all.length === 2 * TALLY_LENGTH ? all.subarray(TALLY_LENGTH) : null }
+  for (const L of [TALLY_LENGTH, SPECTRAL_TALLY_LENGTH]) {
+    if (all.length === L) return { device: all.subarray(0, L), planar: null }
+    if (all.length === 2 * L) return { device: all.subarray(0, L), planar: all.subarray(L) }
+  }
+  throw new Error(`run buffer has ${all.length} numbers, expected 1 or 2 × ${TALLY_LENGTH} (or × ${SPECTRAL_TALLY_LENGTH} with colour)`)
 }

@@ -2,7 +2,7 @@
 // tags). Lengths stay in µm; absorption becomes 1/µm (absorptionPerMm / 1000); angles are radians from here on.
 // A scene for the planar companion (the same stack without lenses) is the same scene with S_HAS_LENS = 0.
 import { DEFAULT_WAVELENGTH_NM, extinctionAt, indexAt, type IndexModel, type Scenario } from '../types/scenario'
-import { buildSpectralBlock, SP_AL, SP_AS, SP_CDF, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID } from './spectral'
+import { buildSpectralBlock, reweightSpectralCells, SP_AL, SP_AS, SPECTRAL_BLOCK_LENGTH, SPECTRAL_GRID, spectralSlot } from './spectral'
 import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
@@ -121,17 +121,7 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
     s.set(buildSpectralBlock(sc, lensIndex), at)
     if (tf) {
       // rays carry the power that enters the glass: each spectral cell weighed by F·G of its node
-      const c = at + SP_CDF
-      let acc = 0
-      const w = new Float64Array(SPECTRAL_GRID)
-      for (let j = 0; j < SPECTRAL_GRID; j++) {
-        const n = tf.nodes[tf.cellNode[j]!]!
-        w[j] = (s[c + j + 1]! - s[c + j]!) * n.point.purcell.mixed * n.glass
-      }
-      s[c] = 0
-      for (let j = 0; j < SPECTRAL_GRID; j++) { acc += w[j]!; s[c + j + 1] = acc }
-      for (let j = 1; j <= SPECTRAL_GRID; j++) s[c + j] = s[c + j]! / acc
-      s[c + SPECTRAL_GRID] = 1
+      reweightSpectralCells(s, at, (j) => { const n = tf.nodes[tf.cellNode[j]!]!; return n.point.purcell.mixed * n.glass })
     }
   }
   if (tf) {
@@ -157,7 +147,12 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   s[S_ABSORPTION_PER_UM] = s[S_ABSORPTION_PER_UM]! / factor
   s[S_LENS_ABSORPTION_PER_UM] = s[S_LENS_ABSORPTION_PER_UM]! / factor
   const sp = s[S_SPECTRAL_OFFSET]!
-  if (sp > 0) for (let j = SP_AS; j < SP_AL + SPECTRAL_GRID + 1; j++) s[sp + j] = s[sp + j]! / factor
+  if (sp > 0) {
+    for (let j = 0; j <= SPECTRAL_GRID; j++) {
+      const qs = sp + spectralSlot(j, SP_AS), ql = sp + spectralSlot(j, SP_AL)
+      s[qs] = s[qs]! / factor; s[ql] = s[ql]! / factor
+    }
+  }
   s[S_PITCH_UM] = s[S_PITCH_UM]! * factor
   s[S_LENS_RADIUS_UM] = s[S_LENS_RADIUS_UM]! * factor
   s[S_SAG_UM] = s[S_SAG_UM]! * factor

@@ -30,20 +30,67 @@ export const PIXEL_AXIS_BINS = 5
 export const T_STACK_ABSORBED = T_PIXEL_RAYS + 1
 export const TALLY_LENGTH = T_STACK_ABSORBED + 1
 
+/**
+ * Colour block (scenarios with `emitter.spectrum` only; a tally made with createTally(true) carries it after the
+ * TALLY_LENGTH slots above, and only such a tally is filled). Rows of COLOUR_BINS counts by the ray's wavelength:
+ * bin j (0–80) holds 380 + 5j nm ± 2.5 nm (centred on the rows of the CIE 5 nm table, cie1931.ts), bin 81 every
+ * wavelength outside 377.5–782.5 nm. Rows 0–44: extracted rays by 2° polar band in air (band b = θ in [2b, 2b + 2)°);
+ * row 45: extracted within the on-axis cone θ < PIXEL_AXIS_BINS° (as luminance.onAxisRelative); row 46: every
+ * launched ray (the launched spectrum, the photometric reference).
+ */
+export const COLOUR_BAND_DEG = 2
+export const COLOUR_BANDS = THETA_BINS / COLOUR_BAND_DEG
+export const COLOUR_BINS = 82
+export const COLOUR_IN_RANGE_BINS = 81
+export const COLOUR_FIRST_EDGE_NM = 377.5
+export const COLOUR_BIN_NM = 5
+/** 1/COLOUR_BIN_NM (exact enough: the bin of λ is defined by this product, in the model and the fused loop alike). */
+export const COLOUR_BINS_PER_NM = 0.2
+export const COLOUR_AXIS_ROW = COLOUR_BANDS
+export const COLOUR_LAUNCH_ROW = COLOUR_BANDS + 1
+export const COLOUR_ROWS = COLOUR_BANDS + 2
+export const T_COLOUR = TALLY_LENGTH
+export const COLOUR_TALLY_LENGTH = COLOUR_ROWS * COLOUR_BINS
+export const SPECTRAL_TALLY_LENGTH = TALLY_LENGTH + COLOUR_TALLY_LENGTH
+
 export type Tally = Float64Array
 
-export function createTally(): Tally {
-  return new Float64Array(TALLY_LENGTH)
+/** A zeroed tally; `colour`: with the colour block (for a scene with a spectrum). */
+export function createTally(colour = false): Tally {
+  return new Float64Array(colour ? SPECTRAL_TALLY_LENGTH : TALLY_LENGTH)
 }
 
-/** Adds `src` into `dst` (exact: integer counts). */
+/** True when the tally carries the colour block. */
+export function hasColour(t: Tally): boolean {
+  return t.length === SPECTRAL_TALLY_LENGTH
+}
+
+/** Colour bin of a wavelength (nm): 0–80 inside 377.5–782.5 nm, 81 outside. */
+export function colourBinOf(wavelengthNm: number): number {
+  const w = (wavelengthNm - COLOUR_FIRST_EDGE_NM) * COLOUR_BINS_PER_NM
+  return w >= 0 && w < COLOUR_IN_RANGE_BINS ? w | 0 : COLOUR_IN_RANGE_BINS
+}
+
+/** Adds `src` into `dst` (exact: integer counts). Both must have the same layout (with or without colour). */
 export function mergeTally(dst: Tally, src: Tally): Tally {
-  for (let i = 0; i < TALLY_LENGTH; i++) dst[i] = dst[i]! + src[i]!
+  if (dst.length !== src.length) throw new Error(`cannot merge a tally of ${src.length} numbers into one of ${dst.length}`)
+  for (let i = 0; i < dst.length; i++) dst[i] = dst[i]! + src[i]!
   return dst
+}
+
+/**
+ * `t` widened to the layout of `like` (a copy with the colour block zeroed) when `like` has colour and `t` does
+ * not; else `t` itself. Lets a total made with createTally() take spectral chunks (mergeRunTallies uses it).
+ */
+export function widenTally(t: Tally, like: Tally): Tally {
+  if (t.length >= like.length) return t
+  const w = new Float64Array(like.length)
+  w.set(t)
+  return w
 }
 
 export function tallyFromBuffer(buf: ArrayBuffer | ArrayBufferLike): Tally {
   const t = new Float64Array(buf)
-  if (t.length !== TALLY_LENGTH) throw new Error(`tally buffer has ${t.length} numbers, expected ${TALLY_LENGTH}`)
+  if (t.length !== TALLY_LENGTH && t.length !== SPECTRAL_TALLY_LENGTH) throw new Error(`tally buffer has ${t.length} numbers, expected ${TALLY_LENGTH} or ${SPECTRAL_TALLY_LENGTH}`)
   return t
 }

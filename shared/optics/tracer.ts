@@ -24,7 +24,7 @@ import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured
 import { fresnelReflects, linearPolarizationIn, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn, stackReflectsIn } from './crossings'
 import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
 import { wrapToSite } from './lattice'
-import { SP_AL, SP_AS, SP_CDF, SP_NE, SP_NL, SP_NS, SPECTRAL_GRID } from './spectral'
+import { SP_AL, SP_AS, SP_CDF, SP_GUIDE, SP_NE, SP_NL, SP_NODES, SP_NS, SP_STRIDE, SPECTRAL_GRID } from './spectral'
 import { measuredProfileOf } from './scene'
 import { sampleCell, sampleDisc, sampleIsotropic, sampleLambertian, sampleRectangle, sampleTabulated } from './sampling'
 import {
@@ -34,6 +34,7 @@ import {
   S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
+  COLOUR_AXIS_ROW, COLOUR_BINS, COLOUR_BINS_PER_NM, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, T_COLOUR,
   PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_STACK_ABSORBED, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
@@ -76,7 +77,14 @@ export function traceRange(
   const nE0 = scene[S_N_EMITTER]!, nS0 = scene[S_N_SUBSTRATE]!, nL0 = scene[S_N_LENS]!
   const tUm = scene[S_THICKNESS_UM]!, alpha0 = scene[S_ABSORPTION_PER_UM]!, alphaL0 = scene[S_LENS_ABSORPTION_PER_UM]!
   const spAt = scene[S_SPECTRAL_OFFSET]! // spectral block (spectral.ts), 0 without a spectrum
-  const spCdf = spAt + SP_CDF
+  const spNodes = spAt + SP_NODES, spGuide = spAt + SP_GUIDE // node 0 and the guide table
+  // node fields relative to a node, and the next node's (locals: imported bindings are not constant-folded)
+  const stride = SP_STRIDE, fCdf = SP_CDF, fNE = SP_NE, fNS = SP_NS, fNL = SP_NL, fAS = SP_AS, fAL = SP_AL, grid = SPECTRAL_GRID
+  // colour counts (film.ts scoreColour) only with a spectrum and a tally that has the block
+  const colour = spAt > 0 && hasColour(tally)
+  const launchRow = T_COLOUR + COLOUR_LAUNCH_ROW * COLOUR_BINS, axisRow = T_COLOUR + COLOUR_AXIS_ROW * COLOUR_BINS
+  const colourBins = COLOUR_BINS, firstEdgeNm = COLOUR_FIRST_EDGE_NM, binsPerNm = COLOUR_BINS_PER_NM, inRange = COLOUR_IN_RANGE_BINS
+  const axisBins = PIXEL_AXIS_BINS, colourAt = T_COLOUR
   const tfAt = scene[S_THINFILM_OFFSET]! // thin-film block (thinfilm/source.ts), 0 for the sheet emitter
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
@@ -121,24 +129,28 @@ export function traceRange(
       if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
     }
     let nE = nE0, nS = nS0, nL = nL0, alpha = alpha0, alphaL = alphaL0
+    let wb = 0 // the ray's colour bin (tally.ts colourBinOf; read only for the colour counts)
     if (spAt > 0) {
       // the ray's wavelength, and its indices and absorption there
       // spectral.ts sampleWavelength and spectralValue, inlined by hand (same operations in the same order)
       const uw = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
-      let lo = 0, hi = SPECTRAL_GRID
-      while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (scene[spCdf + mid]! <= uw) lo = mid; else hi = mid }
-      const ca = scene[spCdf + lo]!, cb = scene[spCdf + lo + 1]!
+      let lo = scene[spGuide + ((uw * grid) | 0)]! | 0
+      while (scene[spNodes + (lo + 1) * stride + fCdf]! <= uw) lo++
+      const q = spNodes + lo * stride, r = q + stride // nodes lo and lo + 1
+      const ca = scene[q + fCdf]!, cb = scene[r + fCdf]!
       const f = cb > ca ? (uw - ca) / (cb - ca) : 0
-      let q = spAt + SP_NE + lo, va = scene[q]!
-      nE = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_NS + lo; va = scene[q]!
-      nS = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_NL + lo; va = scene[q]!
-      nL = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_AS + lo; va = scene[q]!
-      alpha = va + f * (scene[q + 1]! - va)
-      q = spAt + SP_AL + lo; va = scene[q]!
-      alphaL = va + f * (scene[q + 1]! - va)
+      const wf = (scene[spAt]! + (lo + f) * scene[spAt + 1]! - firstEdgeNm) * binsPerNm // colourBinOf(λ), inlined
+      wb = wf >= 0 && wf < inRange ? wf | 0 : inRange
+      let va = scene[q + fNE]!
+      nE = va + f * (scene[r + fNE]! - va)
+      va = scene[q + fNS]!
+      nS = va + f * (scene[r + fNS]! - va)
+      va = scene[q + fNL]!
+      nL = va + f * (scene[r + fNL]! - va)
+      va = scene[q + fAS]!
+      alpha = va + f * (scene[r + fAS]! - va)
+      va = scene[q + fAL]!
+      alphaL = va + f * (scene[r + fAL]! - va)
       if (tfAt > 0) tfNode = thinFilmNode(scene, tfAt, scene[spAt]! + (lo + 0.5) * scene[spAt + 1]!)
     }
     let med = MED_EMITTER
@@ -339,12 +351,13 @@ export function traceRange(
       }
     }
     nEvents += events
+    let bt = -1 // 1° polar bin of an extracted ray
     switch (end) {
       case T_EXTRACTED: {
         // film.ts scoreExit, inlined by hand (a call here cost the planar bench ~10 %)
         nExt++
         const th = Math.acos(dz > 1 ? 1 : dz) // |d| = 1 up to rounding; acos(1 + 1e-16) would be NaN
-        let bt = (th * RAD_TO_THETA_BIN) | 0
+        bt = (th * RAD_TO_THETA_BIN) | 0
         if (bt >= THETA_BINS) bt = THETA_BINS - 1
         let ph = Math.atan2(dy, dx)
         if (ph < 0) ph += TWO_PI
@@ -369,6 +382,15 @@ export function traceRange(
       case T_TRAPPED: nTrap++; break
       case T_STACK_ABSORBED: nStack++; break
       default: nUnres++; break
+    }
+    if (colour) {
+      // film.ts scoreColour, inlined by hand
+      tally[launchRow + wb] = tally[launchRow + wb]! + 1
+      if (bt >= 0) {
+        const b = colourAt + (bt >> 1) * colourBins + wb
+        tally[b] = tally[b]! + 1
+        if (bt < axisBins) tally[axisRow + wb] = tally[axisRow + wb]! + 1
+      }
     }
   }
   tally[T_RAYS] = tally[T_RAYS]! + done

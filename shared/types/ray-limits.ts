@@ -14,12 +14,15 @@ export const MAX_RAYS_PER_CELL = 1_000_000_000
 export const DEFAULT_TEAM_RAY_LIMIT = 1_000_000_000
 
 /**
- * Traced rays per requested ray in one cell: 2 for a lens film over a pixel source (device + traced planar
- * companion), else 1 (quadrature companion, or a flat stack). The engine's rule is the same
+ * Traced rays per requested ray in one cell: 2 for a lens film over a pixel source or a sheet emitter with a
+ * spectrum (device + traced planar companion), else 1 (quadrature companion, or a flat stack). The engine's rule is the same
  * (shared/optics/run.ts tracesCompanion with the default quadrature companion).
  */
-export function tracedPerRay(scenario: { lensArray?: unknown, emitter?: { source?: { shape?: string } } } | null | undefined): 1 | 2 {
-  return scenario?.lensArray && scenario.emitter?.source?.shape !== 'extended' ? 2 : 1
+export function tracedPerRay(scenario: { lensArray?: unknown, emitter?: { source?: { shape?: string }, spectrum?: unknown, thinFilm?: unknown } } | null | undefined): 1 | 2 {
+  if (!scenario?.lensArray) return 1
+  const e = scenario.emitter
+  // a sheet emitter with a spectrum traces its companion too: the flat device's colour comes from its counts
+  return e?.source?.shape !== 'extended' || (e.spectrum != null && e.thinFilm == null) ? 2 : 1
 }
 
 /**
@@ -53,7 +56,7 @@ export function rayLimitMessage(raysPerCell: number, cells: number, tracedPerCel
   const fits = most < MIN_RAYS_PER_CELL ? 'no more'
     : `at most ${fmt(most)} ${waitingTraced > 0 ? 'more ' : ''}${cells > 1 ? 'rays per cell' : ''}`.trim()
   const why = twice
-    ? `each ray of a lens design over a pixel source is traced twice (through the film and through the flat device beside it), your team already has ${fmt(waitingTraced)} traced rays waiting and the limit is ${fmt(teamRayLimit)} traced rays`
+    ? `each ray of a lens design over a pixel source (or with a spectrum) is traced twice (through the film and through the flat device beside it), your team already has ${fmt(waitingTraced)} traced rays waiting and the limit is ${fmt(teamRayLimit)} traced rays`
     : `your team already has ${fmt(waitingTraced)} waiting and the limit is ${fmt(teamRayLimit)}`
   return `This would queue ${asked}, and ${fits} can be queued now: ${why}. Use fewer rays or cells, or wait for running work to finish.`
 }

@@ -31,6 +31,9 @@ export const colourSchema = z.object({
   bandCentersDeg: z.array(z.number()),
   x: perBand,
   y: perBand,
+  /** σ of x and y per band (delta method, as u′v′); absent in results made before they were recorded. */
+  xStdErr: perBand.optional(),
+  yStdErr: perBand.optional(),
   uPrime: perBand,
   vPrime: perBand,
   uPrimeStdErr: perBand,

@@ -165,7 +165,7 @@ describe('team ray limit', () => {
     expect(got.body.teamRayLimit).toBe(1_000_000_000)
     const r = await t.client.post('/api/runs', { designId: t.design.id, precision: { rays: 500_001_000 } })
     expect(r.status).toBe(429)
-    expect(r.body.message).toMatch(/This would queue 500 001 000 rays, and at most 500 M can be queued now: each ray of a lens design over a pixel source is traced twice/)
+    expect(r.body.message).toMatch(/This would queue 500 001 000 rays, and at most 500 M can be queued now: each ray of a lens design over a pixel source \(or with a spectrum\) is traced twice/)
   })
 
   it("a precision run holds its whole ray cap against the limit, not just its first batch", async () => {

@@ -36,7 +36,7 @@ describe('the refusal names the same limit', () => {
   it('a 6·10⁸-ray lens run: at most 500 M, and why', () => {
     const m = rayLimitMessage(600_000_000, 1, 2, 0, 1e9)
     expect(m).toContain('This would queue 600 M rays, and at most 500 M can be queued now')
-    expect(m).toContain('each ray of a lens design over a pixel source is traced twice')
+    expect(m).toContain('each ray of a lens design over a pixel source (or with a spectrum) is traced twice')
   })
   it('a flat run with 800 M waiting: at most 200 M more', () => {
     expect(rayLimitMessage(400_000_000, 1, 1, 800_000_000, 1e9))

@@ -17,7 +17,7 @@
 // 0.35° cell; the exact answer in flat.ts integrates the unbinned power, and the two agree to ~1e-5).
 import { DEFAULT_WAVELENGTH_NM, indexAt, spectrumRangeNm, type Scenario } from '../../types/scenario'
 import type { ThinFilm } from '../../types/thin-film'
-import { buildSpectralBlock, SP_CDF, SPECTRAL_GRID } from '../spectral'
+import { buildSpectralBlock, SP_CDF, SPECTRAL_GRID, spectralSlot } from '../spectral'
 import { glassAngular, thinFilmAt, type ThinFilmPoint } from './dipole'
 import { airy, prepareStack, setAdmittance, setKappa } from './stack'
 import { hash53 } from './table'
@@ -128,7 +128,7 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
     for (let j = 0; j < SPECTRAL_GRID; j++) {
       const node = W === 1 ? 0 : Math.min(W - 1, Math.max(0, Math.round((l0 + (j + 0.5) * dl - block[1]!) / block[2]!)))
       cellNode[j] = node
-      spectrumWeight[node] = spectrumWeight[node]! + (sp[SP_CDF + j + 1]! - sp[SP_CDF + j]!)
+      spectrumWeight[node] = spectrumWeight[node]! + (sp[spectralSlot(j + 1, SP_CDF)]! - sp[spectralSlot(j, SP_CDF)]!)
     }
   }
   const nodes: ThinFilmNode[] = []

@@ -3,7 +3,10 @@
 // shape, Fresnel mode and source shape (plus absorption, a diffuse reflector, a lens index of its own, a square
 // lattice and an event limit that bites). A physics change made in one and not the other fails here.
 import { describe, expect, it, vi } from 'vitest'
-import { createTally, packScene, traceRange, traceRangeModel, TALLY_LENGTH, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED, THETA_BINS, PHI_BINS } from '../../../shared/optics'
+import {
+  COLOUR_BINS, COLOUR_LAUNCH_ROW, createTally, packScene, S_SPECTRAL_OFFSET, traceRange, traceRangeModel, T_COLOUR, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED,
+  THETA_BINS, PHI_BINS,
+} from '../../../shared/optics'
 import { scenarioSchema, type ScenarioInput } from '../../../shared/types/scenario'
 import { REFERENCE_GREEN_STACK } from '../../../shared/types/thin-film'
 
@@ -58,6 +61,8 @@ const cases: Record<string, ScenarioInput> = {
   'hex hemispheres, Gaussian spectrum, Sellmeier (BK7) substrate and lens, polarized': { ...stack, emitter: { ...stack.emitter, spectrum: { peakNm: 530, fwhmNm: 60 } }, substrate: { ...stack.substrate, index: bk7 }, trace: { fresnel: 'polarized' }, lensArray: hemi },
   'square parabolic, table spectrum, tabulated n,k lens, Cauchy emitter, absorbing': { ...stack, emitter: { ...stack.emitter, index: { cauchy: { A: 1.68, B: 0.01 } }, spectrum: { table: [[420, 0.2], [460, 1], [520, 0.3], [560, 0.8], [640, 0.1]] } }, substrate: { ...stack.substrate, absorptionPerMm: 0.5 }, lensArray: { lattice: 'square', pitchUm: 20, diameterUm: 18, sagUm: 6, shape: 'parabolic', index: { table: [[400, 1.62, 0.00002], [700, 1.58, 0.00001]] } } },
   'planar, line spectrum 610 nm, Sellmeier substrate, diffuse': { ...stack, emitter: { ...stack.emitter, spectrum: { wavelengthNm: 610 } }, reflector: { reflectance: 0.9, diffuseFraction: 0.4 }, substrate: { ...stack.substrate, index: bk7 }, lensArray: null },
+  'hex hemispheres, Cauchy lens with strong B, broad Gaussian, averaged, disc pixel': { ...stack, emitter: { ...stack.emitter, source: { shape: 'disc', radiusUm: 20 }, spectrum: { peakNm: 560, fwhmNm: 150 } }, lensArray: { ...hemi, index: { cauchy: { A: 1.5, B: 0.03 } } } },
+  'planar, Gaussian reaching past 780 nm, Lambertian, no Fresnel': { ...stack, emitter: { ...stack.emitter, angularProfile: 'lambertian', spectrum: { peakNm: 700, fwhmNm: 80 } }, trace: { fresnel: 'none' }, lensArray: null },
   'equal indices everywhere, ideal mirror': { emitter: { index: 1.5, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 1, diffuseFraction: 0 }, substrate: { index: 1.5, thicknessUm: 20, absorptionPerMm: 0 }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } },
 }
 
@@ -66,7 +71,8 @@ const cases: Record<string, ScenarioInput> = {
 vi.setConfig({ testTimeout: 60_000 })
 
 function firstDifference(a: Float64Array, b: Float64Array): string {
-  for (let i = 0; i < TALLY_LENGTH; i++) if (a[i] !== b[i]) return `slot ${i}: fused ${a[i]}, model ${b[i]}`
+  if (a.length !== b.length) return `lengths: fused ${a.length}, model ${b.length}`
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return `slot ${i}: fused ${a[i]}, model ${b[i]}`
   return 'none'
 }
 
@@ -76,12 +82,22 @@ describe('readable model = fused loop, bit for bit (seeds 41 and 42, streams 0 a
     it(name, () => {
       const sc = scenarioSchema.parse(input)
       const scene = packScene(sc)
+      // a scene with a spectrum fills the colour block too (every slot of it compared)
+      const colour = scene[S_SPECTRAL_OFFSET]! > 0
       for (const [seed, stream] of [[41, 0], [42, 1]] as const) {
-        const fused = createTally(), model = createTally()
+        const fused = createTally(colour), model = createTally(colour)
         traceRange(scene, 1000, 2500, seed, fused, undefined, stream)
         traceRangeModel(scene, 1000, 2500, seed, model, stream)
         expect(firstDifference(fused, model)).toBe('none')
         expect(fused[T_RAYS]).toBe(2500)
+        if (colour) {
+          // every ray in the launched row, every extracted one in a band row
+          let launched = 0, banded = 0
+          for (let j = 0; j < COLOUR_BINS; j++) launched += fused[T_COLOUR + COLOUR_LAUNCH_ROW * COLOUR_BINS + j]!
+          for (let i = 0; i < (THETA_BINS / 2) * COLOUR_BINS; i++) banded += fused[T_COLOUR + i]!
+          expect(launched).toBe(2500)
+          expect(banded).toBe(fused[T_EXTRACTED])
+        }
         // not a trivial tally: light got out and the map holds it
         expect(fused[T_EXTRACTED]!).toBeGreaterThan(50)
         let mapped = 0

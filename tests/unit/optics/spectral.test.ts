@@ -67,3 +67,29 @@ describe('bad spectra and materials are refused with the field named in the trad
   it('k < 0', () => refused({ ...base, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, index: { table: [[400, 1.5, -0.001], [700, 1.5, 0]] } } }, 'Lens index table row 1, k', 'must be at least 0: got -0.001'))
   it('an index table that does not cover the spectrum', () => refused({ ...base, emitter: { ...base.emitter, spectrum: { table: [[380, 1], [780, 1]] } }, substrate: { index: { table: [[400, 1.5, 0], [700, 1.5, 0]] }, thicknessUm: 100 } }, 'Substrate index', 'covers 400–700 nm'))
 })
+
+describe('inverse-CDF search through the guide table', () => {
+  it('lands on the cell a bisection finds, for every u of a fine grid (Gaussian, gappy table, line)', async () => {
+    const { buildSpectralBlock, sampleWavelength, SP_CDF, SPECTRAL_GRID, spectralSlot } = await import('../../../shared/optics/spectral')
+    const { scenarioSchema } = await import('../../../shared/types/scenario')
+    const spectra = [
+      { peakNm: 530, fwhmNm: 60 },
+      { table: [[400, 0], [420, 1], [430, 0], [600, 0], [610, 3], [620, 0]] as Array<[number, number]> },
+      { wavelengthNm: 610 },
+    ]
+    for (const spectrum of spectra) {
+      const sc = scenarioSchema.parse({ emitter: { index: 1.7, spectrum }, reflector: { reflectance: 0.8 }, substrate: { index: 1.5, thicknessUm: 10 }, lensArray: null })
+      const block = buildSpectralBlock(sc, sc.substrate.index)
+      const cell = new Float64Array(2)
+      let mismatches = 0
+      for (let i = 0; i < 20_011; i++) {
+        const u = (i + 0.5) / 20_011
+        let lo = 0, hi = SPECTRAL_GRID
+        while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (block[spectralSlot(mid, SP_CDF)]! <= u) lo = mid; else hi = mid }
+        sampleWavelength(block, 0, u, cell)
+        if (cell[0] !== lo) mismatches++
+      }
+      expect(mismatches).toBe(0)
+    }
+  })
+})
