@@ -32,7 +32,7 @@ function trace(scene: Float64Array, stream: number): { tally: Tally; seconds: nu
 const dev = trace(run.device, STREAM_DEVICE)
 const pl = trace(run.planar!, STREAM_PLANAR)
 const flatScene = packScene(sc, { planar: true })
-flatCompanionOfScene(flatScene) // warm-up
+for (let i = 0; i < 30; i++) flatCompanionOfScene(flatScene) // warm-up (JIT)
 const qt: number[] = []
 let flat = flatCompanionOfScene(flatScene)
 for (let i = 0; i < 7; i++) { const t0 = performance.now(); flat = flatCompanionOfScene(flatScene); qt.push((performance.now() - t0) / 1000) }
