@@ -54,9 +54,21 @@ export function applySheet(draft: Record<string, any>, reflector?: { reflectance
   draft.reflector = { ...(reflector ?? DEFAULT_SHEET_REFLECTOR) }
 }
 
+/**
+ * A deep copy of a stack field by field. Not structuredClone: the editor's stack is a Vue reactive proxy, which
+ * structuredClone refuses; and not JSON: an emptied field holds NaN, which must stay NaN (the schema names it).
+ */
+export function cloneStack(tf: StackValue): StackValue {
+  return {
+    ...tf,
+    layers: tf.layers.map((l) => ({ ...l, material: { ...l.material } })),
+    cathode: { ...tf.cathode, material: { ...tf.cathode.material } },
+  }
+}
+
 /** A plain copy of a stack with the schema's defaults filled in where the input leaves them out. */
 export function stackFromInput(input: ThinFilmInput): StackValue {
-  const c = structuredClone(input) as StackValue
+  const c = cloneStack(input as StackValue)
   c.horizontalDipoleFraction ??= 2 / 3
   c.radiativeEfficiency ??= 1
   return c
@@ -64,7 +76,7 @@ export function stackFromInput(input: ThinFilmInput): StackValue {
 
 // ---- layer table edits (each returns a new stack; the input is left alone) ----
 
-function copy(tf: StackValue): StackValue { return structuredClone(tf) }
+const copy = cloneStack
 
 /** A new transport-like layer after row `at` (or at the end): 20 nm of n = 1.75, not emitting. */
 export function addLayer(tf: StackValue, at = tf.layers.length - 1): StackValue {
@@ -78,7 +90,7 @@ export function duplicateLayer(tf: StackValue, at: number): StackValue {
   const c = copy(tf)
   const l = c.layers[at]
   if (!l) return c
-  c.layers.splice(at + 1, 0, { ...structuredClone(l), ...(l.name ? { name: `${l.name} copy`.slice(0, 40) } : {}) })
+  c.layers.splice(at + 1, 0, { ...l, material: { ...l.material }, ...(l.name ? { name: `${l.name} copy`.slice(0, 40) } : {}) })
   return c
 }
 

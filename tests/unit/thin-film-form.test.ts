@@ -1,10 +1,11 @@
 // The editor's layer-stack logic (app/utils/thinFilmForm.ts) and the stack presets (app/utils/presets.ts): the
 // scenario a stack design holds, the table edits, thinFilmSchema's messages by field, and the sweep axes.
 import { describe, expect, it } from 'vitest'
+import { reactive } from 'vue'
 import { REFERENCE_GREEN_STACK, thinFilmSchema } from '../../shared/types/thin-film'
 import { scenarioSchema } from '../../shared/types/scenario'
 import {
-  addLayer, applySheet, applyStack, checkStack, defaultStackAxis, duplicateLayer, moveLayer, removeLayer, setEmitting,
+  addLayer, applySheet, applyStack, checkStack, cloneStack, defaultStackAxis, duplicateLayer, moveLayer, removeLayer, setEmitting,
   stackAxisLabel, stackAxisOptions, stackEmitterIndex, stackFromInput, updateLayer, usesStack,
 } from '../../app/utils/thinFilmForm'
 import { BLUE_FLUORESCENT_STACK, DESIGN_PRESETS, presetScenario, scenarioTakesStack } from '../../app/utils/presets'
@@ -79,6 +80,21 @@ describe('layer table edits', () => {
     expect(dup.layers.map((l) => l.name)).toEqual(['ITO', 'HTL', 'EML', 'EML copy', 'ETL'])
     expect(dup.layers[3]!.emitting).toBe(true)
     expect(JSON.stringify(tf)).toBe(before)
+  })
+
+  it('edits work on the editor\'s reactive (proxied) stack and keep an emptied field as NaN', () => {
+    const tf = reactive(green())
+    tf.layers[1]!.thicknessNm = NaN
+    const dup = duplicateLayer(tf, 2)
+    expect(dup.layers).toHaveLength(5)
+    expect(Number.isNaN(cloneStack(tf).layers[1]!.thicknessNm)).toBe(true)
+    expect(moveLayer(tf, 1, 1).layers[2]!.name).toBe('HTL')
+    // the copy shares nothing with the original
+    const c = cloneStack(tf)
+    c.layers[0]!.material.n = 2.2
+    c.cathode.material.k = 1
+    expect(tf.layers[0]!.material.n).toBe(1.9)
+    expect(tf.cathode.material.k).toBe(6.69)
   })
 
   it('setEmitting leaves exactly one emitting layer; updateLayer sets n, k and thickness', () => {
