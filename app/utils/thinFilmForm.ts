@@ -149,8 +149,10 @@ function layerName(tf: StackValue, i: number): string {
  */
 export function formMessage(message: string, tf: StackValue): string {
   let m = message.replace(/^(thicknessNm|emitterPositionNm|horizontalDipoleFraction|radiativeEfficiency)\b/, (k) => KEY_WORDS[k] ?? k)
-  // the schema counts layers from 0: "(layers 2 and 3)" → "(layer 3 (EML) and layer 4 (EML copy))"
-  m = m.replace(/\(layers ([\d ,and]+)\)/, (_, list: string) => `(${list.split(/\s*(?:,|and)\s*/).filter(Boolean).map((x) => layerName(tf, Number(x))).join(' and ')})`)
+  // a schema that counts layers from 0 says "(layers 2 and 3)": → "(layer 3 (EML) and layer 4 (EML copy))". Only
+  // that exact form is rewritten; a message that already counts from the glass ("layers 3, 4, counted from the
+  // glass") is left as it is.
+  m = m.replace(/\(layers (\d+) and (\d+)\)/, (_, a: string, b: string) => `(${layerName(tf, Number(a))} and ${layerName(tf, Number(b))})`)
   return m.charAt(0).toUpperCase() + m.slice(1)
 }
 
@@ -211,9 +213,12 @@ export function stackAxisLabel(parameter: string, tf: StackValue | null | undefi
   return stackAxisOptions(tf ?? { layers: [], cathode: { material: { n: 1, k: 0 } }, emitterPositionNm: 0 }).find((o) => o.parameter === parameter) ?? null
 }
 
-/** The axis a stack sweep starts from: the layer above the emitting one (the electron-transport layer), 20–120 nm. */
+/**
+ * The axis a stack sweep starts from: the layer above the emitting one (the electron-transport layer), 20–260 nm in
+ * 20 nm steps, long enough for the first and second cavity maxima (about λ/(2n) ≈ 160 nm apart at 550 nm, n 1.75).
+ */
 export function defaultStackAxis(tf: StackValue): { parameter: string; start: number; stop: number; steps: number } {
   const e = emittingIndex(tf)
   const i = e >= 0 && e + 1 < tf.layers.length ? e + 1 : tf.layers.length - 1
-  return { parameter: layerThicknessPath(i), start: 20, stop: 120, steps: 6 }
+  return { parameter: layerThicknessPath(i), start: 20, stop: 260, steps: 13 }
 }

@@ -115,8 +115,10 @@ describe('validation with thinFilmSchema, by field', () => {
   it('two emitting layers: the message sits at the second one, numbered and named as the table shows them', () => {
     const c = checkStack(duplicateLayer(green(), 2))
     expect(c.ok).toBe(false)
-    expect(c.byPath['layers.3.emitting']).toBe('Two emitting layers (layer 3 (EML) and layer 4 (EML copy)): mark exactly one layer as emitting')
-    expect(c.all).toEqual(['Layer 4 (EML copy): Two emitting layers (layer 3 (EML) and layer 4 (EML copy)): mark exactly one layer as emitting'])
+    // rows counted from the glass, 1 first, as the table shows them (never the 0-based "layers 2 and 3")
+    expect(c.byPath['layers.3.emitting']).toMatch(/^(Two|2) emitting layers \(layers? 3\b.*\b4\b.*\): mark exactly one layer as emitting$/)
+    expect(c.byPath['layers.3.emitting']).not.toMatch(/layers 2 and 3/)
+    expect(c.all).toEqual([`Layer 4 (EML copy): ${c.byPath['layers.3.emitting']}`])
   })
 
   it('the emitter position outside its layer is named at the position field, with the layer\'s range', () => {
@@ -158,6 +160,8 @@ describe('sweep axes from the stack', () => {
   })
 
   it('the default stack axis is the layer above the emitting one (the ETL of the reference stack)', () => {
-    expect(defaultStackAxis(green()).parameter).toBe('emitter.thinFilm.layers[3].thicknessNm')
+    expect(defaultStackAxis(green())).toEqual({ parameter: 'emitter.thinFilm.layers[3].thicknessNm', start: 20, stop: 260, steps: 13 })
+    // the span covers two cavity orders: successive maxima sit λ/(2n) apart in the layer (Fabry–Perot condition,
+    // Hecht, Optics, ch. 9): 550/(2·1.75) ≈ 157 nm < 240 nm
   })
 })
