@@ -1,8 +1,9 @@
 // The OLED layer stack in the design editor (Chromium against the built server with the demo data): the green
 // stack preset, its to-scale drawing, thinFilmSchema's messages beside the fields with Save disabled, the fix, the
 // per-layer sweep axes, and the way back to the sheet emitter. Screenshots go to test-output/e2e/.
-// Saving a stack needs a scenario schema that stores `emitter.thinFilm`; until it does, the last part checks that
-// Save stays disabled with the schema's reason listed instead (both branches below, chosen by the schema itself).
+// Saving a stack (and tracing it) needs a scenario schema that stores `emitter.thinFilm`; until it does, the last
+// part checks that Save stays disabled with the schema's reason listed instead (the branches below are chosen by
+// the schema itself, scenarioTakesStack).
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import { DEMO_USERS } from '../../server/utils/demo'
 import { scenarioTakesStack } from '../../app/utils/presets'
@@ -107,6 +108,20 @@ describe('the layer stack as the source', () => {
     expect(await page.locator('#stack-emitter-position').inputValue()).toBe('12')
     expect(await page.locator('#reflector-r').count()).toBe(0)
     await shot(page, 'thin-film-05-saved')
+  })
+
+  it.runIf(takesStack)('a run of the saved stack shows F, the effective q, K(u), the mode split and the emission into the glass', async () => {
+    await page.locator('#run-rays').fill('20000')
+    await Promise.all([page.waitForURL(/\/runs\//), page.getByTestId('run-start').click()])
+    await page.getByTestId('thin-film-result').waitFor({ timeout: 120_000 })
+    for (const id of ['chart-dissipation', 'chart-mode-split', 'chart-glass-emission']) await page.getByTestId(id).locator('canvas').first().waitFor()
+    // F is a plain number with its unit (exact); the effective radiative efficiency a percentage
+    expect(await page.getByTestId('figure-purcell').textContent()).toMatch(/Purcell factor F\s*\d+(\.\d+)? ×/)
+    expect(await page.getByTestId('figure-effective-q').textContent()).toMatch(/\d+\.\d\d %/)
+    expect(await page.getByTestId('settings-stack').textContent()).toContain('ETL 50 nm')
+    await shot(page, 'thin-film-06-result')
+    await page.goBack()
+    await page.getByTestId('stack-layers').waitFor()
   })
 
   it.runIf(!takesStack)('fixed: the stack form is clean, but Save stays disabled while the scenario schema cannot store a stack', async () => {
