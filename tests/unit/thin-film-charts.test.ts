@@ -45,13 +45,23 @@ describe('power dissipation spectrum', () => {
     expect(r.map((x) => [x.key, x.from, x.to])).toEqual([
       ['air', 0, 1 / 1.75], ['glass', 1 / 1.75, 1.5 / 1.75], ['waveguided', 1.5 / 1.75, 1], ['evanescent', 1, 1.6],
     ])
+    // the end rounds up to 0.1 (u grid to 1.9975 → 2)
+    expect(dissipationRegions({ ...tf.dissipation, u: [0, 0.5, 1.9975] }).at(-1)!.to).toBe(2)
     const mixed = series(dissipationOption(tf))[3]!
     expect(mixed.markArea!.data.map((d) => [d[0].name, d[0].xAxis, d[1].xAxis])).toEqual(r.map((x) => [x.label, x.from, x.to]))
   })
 
   it('plots TE-h, TM-h, TM-v and the mix on a log axis, leaving out K ≤ 0 (K = 0 at u = 0)', () => {
     const o = dissipationOption(tf)
-    expect((o.yAxis as { type: string }).type).toBe('log')
+    const y = o.yAxis as { type: string; min: number; max: number }
+    expect(y.type).toBe('log')
+    // up to the decade above the highest K; down to three decades below the mix's median decade
+    const peak = Math.max(...tf.dissipation.teHorizontal, ...tf.dissipation.tmHorizontal, ...tf.dissipation.tmVertical, ...tf.dissipation.mixed)
+    expect(y.max).toBeGreaterThanOrEqual(peak)
+    expect(y.max / 10).toBeLessThan(peak)
+    const pos = tf.dissipation.mixed.filter((k) => k > 0).sort((a, b) => a - b)
+    expect(y.min).toBeCloseTo(10 ** (Math.floor(Math.log10(pos[Math.floor(pos.length / 2)]!)) - 3), 12)
+    expect(y.min).toBeGreaterThan(1e-5)
     const s = series(o)
     expect(s.map((x) => x.name)).toEqual(['TE, horizontal', 'TM, horizontal', 'TM, vertical', 'mixed (Θ = 0.667)'])
     expect(s[3]!.data[0]).toEqual([0, null])
@@ -63,7 +73,7 @@ describe('power dissipation spectrum', () => {
 
   it('echarts draws it with the region names; the CSV has one row per u with its region', () => {
     const svg = drawn(dissipationOption(tf))
-    for (const w of ['reaches air', 'trapped in the glass', 'waveguided', 'evanescent / plasmon', 'TM, vertical']) expect(svg).toContain(w)
+    for (const w of ['>air<', '>glass<', '>guided<', 'evanescent / plasmon', 'TM, vertical']) expect(svg).toContain(w)
     const csv = dissipationCsv(tf)
     expect(csv.rows).toHaveLength(tf.dissipation.u.length)
     expect(csv.rows[0]!.at(-1)).toBe('air')

@@ -13,13 +13,28 @@ export interface CsvTable { header: string[]; rows: Array<Array<string | number 
  * u = 1 (surface plasmons at the cathode, lossy surface waves).
  */
 export function dissipationRegions(d: ThinFilmResult['dissipation']): Array<{ key: string; label: string; from: number; to: number; colour: string }> {
-  const uMax = d.u.length ? d.u[d.u.length - 1]! : 1
+  // the plotted range ends at the last u rounded up to 0.1 (a round axis end)
+  const uMax = Math.max(Math.ceil((d.u.length ? d.u[d.u.length - 1]! : 1) * 10 - 1e-9) / 10, 1.1)
   return [
-    { key: 'air', label: 'reaches air', from: 0, to: d.uAir, colour: 'rgba(31,107,106,0.14)' },
-    { key: 'glass', label: 'trapped in the glass', from: d.uAir, to: d.uGlass, colour: 'rgba(31,107,106,0.06)' },
-    { key: 'waveguided', label: 'waveguided', from: d.uGlass, to: 1, colour: 'rgba(184,109,24,0.09)' },
-    { key: 'evanescent', label: 'evanescent / plasmon', from: 1, to: Math.max(uMax, 1), colour: 'rgba(122,79,134,0.10)' },
+    { key: 'air', label: 'air', from: 0, to: d.uAir, colour: 'rgba(31,107,106,0.14)' },
+    { key: 'glass', label: 'glass', from: d.uAir, to: d.uGlass, colour: 'rgba(31,107,106,0.06)' },
+    { key: 'waveguided', label: 'guided', from: d.uGlass, to: 1, colour: 'rgba(184,109,24,0.09)' },
+    { key: 'evanescent', label: 'evanescent / plasmon', from: 1, to: uMax, colour: 'rgba(122,79,134,0.10)' },
   ]
+}
+
+/**
+ * The log axis's span: from three decades below the median K of the mix (the near-zero K at u → 0 and deep in the
+ * evanescent tail would otherwise squeeze the curves into a band) up to the decade above the highest K, so sharp
+ * guided-mode and plasmon peaks stay whole.
+ */
+export function dissipationLogRange(d: ThinFilmResult['dissipation']): { min: number; max: number } {
+  let peak = 0
+  for (const ks of [d.teHorizontal, d.tmHorizontal, d.tmVertical, d.mixed]) for (const k of ks) if (Number.isFinite(k) && k > peak) peak = k
+  const pos = d.mixed.filter((k) => Number.isFinite(k) && k > 0).sort((a, b) => a - b)
+  if (!(peak > 0) || pos.length === 0) return { min: 1e-3, max: 10 }
+  const median = pos[Math.floor(pos.length / 2)]!
+  return { min: 10 ** (Math.floor(Math.log10(median)) - 3), max: 10 ** Math.ceil(Math.log10(peak) + 1e-9) }
 }
 
 // a log axis has no place for K ≤ 0 (or a non-finite value): such points are left out of the line
@@ -33,13 +48,14 @@ export function dissipationOption(tf: ThinFilmResult): Record<string, unknown> {
     name, type: 'line', showSymbol: false, connectNulls: false, data: d.u.map((u, i) => logPoint(u, ks[i])), lineStyle: { color: colour, width: 1.4 }, itemStyle: { color: colour }, ...extra,
   })
   const th = tf.horizontalDipoleFraction
+  const range = dissipationLogRange(d)
   return {
     animation: false,
     grid: { left: 64, right: 20, top: 40, bottom: 72 },
     legend: { bottom: 0, textStyle: { color: INK } },
     tooltip: { trigger: 'axis', valueFormatter: (v: number | null) => (v === null || v === undefined ? '—' : Number(v).toExponential(3)) },
     xAxis: { type: 'value', min: 0, max: regions[3]!.to, name: 'u = in-plane wavevector / k in the emitting layer (1)', nameLocation: 'middle', nameGap: 28 },
-    yAxis: { type: 'log', name: 'K(u) (1, free emitting medium: ∫K du = 1)', nameTextStyle: { align: 'left' }, axisLabel: { formatter: (v: number) => v.toExponential(0) } },
+    yAxis: { type: 'log', min: range.min, max: range.max, name: 'K(u) (1, free emitting medium: ∫K du = 1)', nameTextStyle: { align: 'left' }, axisLabel: { formatter: (v: number) => v.toExponential(0) } },
     series: [
       line('TE, horizontal', d.teHorizontal, LAGOON),
       line('TM, horizontal', d.tmHorizontal, EMBER),
@@ -48,8 +64,9 @@ export function dissipationOption(tf: ThinFilmResult): Record<string, unknown> {
         lineStyle: { color: INK, width: 2.2 },
         markArea: {
           silent: true,
-          label: { position: 'insideTop', color: MUTED, fontSize: 11 },
-          data: regions.map((r) => [{ name: r.label, xAxis: r.from, itemStyle: { color: r.colour } }, { xAxis: r.to }]),
+          label: { color: MUTED, fontSize: 11 },
+          // names alternately at the top and the bottom, so the narrow guided band's does not run into its neighbours'
+          data: regions.map((r, i) => [{ name: r.label, xAxis: r.from, itemStyle: { color: r.colour }, label: { position: i % 2 === 0 ? 'insideTop' : 'insideBottom' } }, { xAxis: r.to }]),
         },
       }),
     ],
@@ -77,7 +94,7 @@ export function modeSplitOption(tf: ThinFilmResult): Record<string, unknown> {
   const bars = [['flat device (exact)', tf.modes.flat], ['with the film (traced)', tf.modes.film]] as const
   return {
     animation: false,
-    grid: { left: 150, right: 24, top: 36, bottom: 70 },
+    grid: { left: 150, right: 24, top: 16, bottom: 96 },
     legend: { bottom: 0, textStyle: { color: INK } },
     tooltip: {
       trigger: 'axis', axisPointer: { type: 'shadow' },
@@ -90,7 +107,7 @@ export function modeSplitOption(tf: ThinFilmResult): Record<string, unknown> {
         }).join('<br>')}`
       },
     },
-    xAxis: { type: 'value', min: 0, max: 100, name: 'share of the dipole power (%)', nameLocation: 'middle', nameGap: 28 },
+    xAxis: { type: 'value', min: 0, max: 100, name: 'share of the dipole power (%)', nameLocation: 'middle', nameGap: 26 },
     yAxis: { type: 'category', inverse: true, data: bars.map((b) => b[0]) },
     series: MODE_CHANNELS.map(([key, words, colour]) => ({
       name: words, type: 'bar', stack: 'modes', barWidth: '46%', itemStyle: { color: colour },
