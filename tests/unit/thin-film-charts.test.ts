@@ -28,7 +28,8 @@ function drawn(option: Record<string, unknown>): string {
   chart.dispose()
   return svg
 }
-const series = (o: Record<string, unknown>) => o.series as Array<{ name: string; data: any[]; markArea?: { data: Array<[{ name: string; xAxis: number }, { xAxis: number }]> } }>
+interface Series { name: string; data: any[]; markArea?: { data: Array<[{ name: string; xAxis: number }, { xAxis: number }]> } }
+const series = (o: Record<string, unknown>) => o.series as Series[]
 
 describe('the fixture', () => {
   it('parses with resultSchema and carries the thin-film block and stackAbsorbed', () => {
