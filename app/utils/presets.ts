@@ -1,9 +1,9 @@
 // Starting points for a new design. Invented round values (no published device): a bottom-emitting stack of
 // emitter index 1.7 on 100 µm glass of 1.5 with an 80 % back reflector, and four lens choices. New designs trace polarisation-tracked Fresnel.
 // Two more presets replace the sheet emitter and its mirror by the OLED's own layer stack (`emitter.thinFilm`).
-import { scenarioSchema, type ScenarioInput } from '#shared/types/scenario'
+import { scenarioSchema, type Scenario, type ScenarioInput } from '#shared/types/scenario'
 import { REFERENCE_GREEN_STACK, type ThinFilmInput } from '#shared/types/thin-film'
-import { applyStack, stackFromInput } from './thinFilmForm'
+import { applyStack, stackFromInput, type StackValue } from './thinFilmForm'
 
 const stack = {
   emitter: { index: 1.7, angularProfile: 'isotropic', source: { shape: 'extended' } },
@@ -94,8 +94,12 @@ export const DESIGN_PRESETS: readonly DesignPreset[] = [
  * A preset as a design scenario: the sheet part parsed by scenarioSchema (defaults filled in), then for a stack
  * preset the stack in `emitter.thinFilm`, the reflector removed and the emitter index from the emitting layer.
  */
-export function presetScenario(p: DesignPreset): Record<string, any> {
-  const s = structuredClone(scenarioSchema.parse(p.scenario)) as Record<string, any>
+export type PresetScenario = Omit<Scenario, 'reflector' | 'emitter'> & {
+  emitter: Scenario['emitter'] & { thinFilm?: StackValue }
+  reflector?: Scenario['reflector']
+}
+export function presetScenario(p: DesignPreset): PresetScenario {
+  const s: PresetScenario = structuredClone(scenarioSchema.parse(p.scenario))
   if (p.stack) applyStack(s, stackFromInput(p.stack))
   return s
 }

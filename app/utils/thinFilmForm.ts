@@ -13,6 +13,12 @@ export interface StackValue {
   radiativeEfficiency?: number
 }
 
+/** The parts of a scenario (draft) that switching the source touches. */
+export interface SourceParts {
+  emitter: { index?: unknown; thinFilm?: StackValue }
+  reflector?: { reflectance: number; diffuseFraction: number }
+}
+
 /** The reflector a design gets back when it returns from the stack to the sheet emitter (the sheet presets' mirror). */
 export const DEFAULT_SHEET_REFLECTOR = { reflectance: 0.8, diffuseFraction: 0 } as const
 
@@ -39,7 +45,7 @@ export function stackEmitterIndex(tf: StackValue): number | undefined {
  * cathode reflects), `emitter.index` from the emitting layer when it has a usable n. Returns the reflector it
  * removed (undefined if there was none), so switching back can restore it.
  */
-export function applyStack(draft: Record<string, any>, tf: StackValue): { reflectance: number; diffuseFraction: number } | undefined {
+export function applyStack(draft: SourceParts, tf: StackValue): { reflectance: number; diffuseFraction: number } | undefined {
   const removed = draft.reflector ?? undefined
   delete draft.reflector
   draft.emitter.thinFilm = tf
@@ -49,7 +55,7 @@ export function applyStack(draft: Record<string, any>, tf: StackValue): { reflec
 }
 
 /** Back to the sheet emitter in place: no `emitter.thinFilm`, a reflector again (the one given, or the default). */
-export function applySheet(draft: Record<string, any>, reflector?: { reflectance: number; diffuseFraction: number }): void {
+export function applySheet(draft: SourceParts, reflector?: { reflectance: number; diffuseFraction: number }): void {
   delete draft.emitter.thinFilm
   draft.reflector = { ...(reflector ?? DEFAULT_SHEET_REFLECTOR) }
 }

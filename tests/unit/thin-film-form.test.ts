@@ -17,7 +17,7 @@ describe('a design with the layer stack as its source', () => {
     const p = DESIGN_PRESETS.find((x) => x.id === 'green-stack')!
     const s = presetScenario(p)
     expect(s.reflector).toBeUndefined()
-    expect(s.emitter.thinFilm.layers.map((l: { name: string }) => l.name)).toEqual(['ITO', 'HTL', 'EML', 'ETL'])
+    expect(s.emitter.thinFilm!.layers.map((l) => l.name)).toEqual(['ITO', 'HTL', 'EML', 'ETL'])
     expect(s.emitter.index).toBe(1.75)
     expect(usesStack(s)).toBe(true)
     // the rest of the scenario is the sheet preset's, parsed with its defaults
@@ -30,7 +30,7 @@ describe('a design with the layer stack as its source', () => {
     expect(thinFilmSchema.safeParse(BLUE_FLUORESCENT_STACK).success).toBe(true)
     const s = presetScenario(DESIGN_PRESETS.find((x) => x.id === 'blue-stack')!)
     expect(s.emitter.index).toBe(1.8)
-    expect(s.emitter.thinFilm.radiativeEfficiency).toBe(0.8)
+    expect(s.emitter.thinFilm!.radiativeEfficiency).toBe(0.8)
   })
 
   it('sheet presets stay as they were: a reflector, no thinFilm', () => {
@@ -42,7 +42,7 @@ describe('a design with the layer stack as its source', () => {
   })
 
   it('switching to the stack removes the reflector and returns it; switching back restores it', () => {
-    const d = structuredClone(scenarioSchema.parse(DESIGN_PRESETS[0]!.scenario)) as Record<string, any>
+    const d = presetScenario(DESIGN_PRESETS[0]!)
     d.reflector = { reflectance: 0.93, diffuseFraction: 0.1 }
     const removed = applyStack(d, green())
     expect(removed).toEqual({ reflectance: 0.93, diffuseFraction: 0.1 })
