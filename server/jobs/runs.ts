@@ -273,7 +273,8 @@ export function figureOf(summary: CellSummary | null, figure: string): { value: 
     case 'extraction': return { value: summary.extraction, stdErr: summary.extractionStdErr }
     case 'onAxisLuminance': return { value: summary.onAxisLuminance, stdErr: summary.onAxisLuminanceStdErr }
     case 'pixelOnAxisGain':
-      return summary.pixelOnAxisGain === null || summary.pixelOnAxisGain === undefined ? null : { value: summary.pixelOnAxisGain, stdErr: summary.pixelOnAxisGainStdErr ?? 0 }
+      return summary.pixelOnAxisGain === null || summary.pixelOnAxisGain === undefined ? null : { value: summary.pixelOnAxisGain,
+        stdErr: summary.pixelOnAxisGainStdErr ?? 0 }
     default: return { value: summary.enhancement, stdErr: summary.enhancementStdErr }
   }
 }
@@ -331,7 +332,7 @@ export async function runProgress(runId: string) {
     cellCounts: counts,
     raysPlanned: Number(run.rays_planned),
     raysDone: Number(run.rays_done),
-    bestCell: bestRow ? { cellIndex: best, figure: run.figure, ...figureOf(bestRow.summary, run.figure)! } : null,
+    bestCell: bestRow && best !== null ? { cellIndex: best, figure: run.figure as string, ...figureOf(bestRow.summary, run.figure)! } : null,
     errors: cells.filter((c) => c.error).map((c) => ({ cellIndex: c.cell_index as number, error: c.error as string })).slice(0, 20),
     runError: run.error as string | null,
     startedAt: run.started_at as Date | null,

@@ -1,4 +1,4 @@
-import { idParamSchema } from '../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 import { runProgress } from '../../jobs/runs'
 
 export default defineApiHandler(async (event) => {
