@@ -26,7 +26,8 @@ export type ProjectLimits = z.infer<typeof projectLimitsSchema>
 export const projectPatchSchema = z.object({ limits: projectLimitsSchema.nullable() }).strict()
 
 /** A lens geometry checked against the limits: one line per broken limit, in the trade's words. */
-export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined, limits: ProjectLimits | null | undefined): string[] {
+export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined,
+  limits: ProjectLimits | null | undefined): string[] {
   if (!lens || !limits) return []
   const out: string[] = []
   const r = (v: number) => String(Number(v.toPrecision(4)))
