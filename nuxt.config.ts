@@ -1,6 +1,8 @@
 import { fileURLToPath } from 'node:url'
+import { PALETTE } from './app/utils/palette'
 // Lensfield: Nuxt 4 configuration, set up by hand.
-// The Tailwind theme lives here (no tailwind.config at the top level): Lensfield's own palette and type scale.
+// The Tailwind theme lives here (no tailwind.config at the top level): Lensfield's own palette (app/utils/palette.ts)
+// and type scale.
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   // Build files inside the checkout: Nuxt 4's default (node_modules/.cache/nuxt) is shared by every worktree whose
@@ -48,16 +50,8 @@ export default defineNuxtConfig({
     config: {
       theme: {
         extend: {
-          colors: {
-            // "ink": deep blue-grey for text and the header; "paper" surfaces; "rule" hairlines and borders.
-            ink: { DEFAULT: '#17202b', soft: '#3a4656', muted: '#64707f' },
-            paper: { DEFAULT: '#f6f5f1', raised: '#ffffff', sunk: '#ebe9e2' },
-            rule: { DEFAULT: '#d8d5cc', strong: '#b9b5aa' },
-            // "ember": the warm accent of an emitting tile; "lagoon": the cool accent for links and focus.
-            ember: { 50: '#fdf4e7', 200: '#f6d39a', 500: '#d9892b', 600: '#b86d18', 800: '#6e3f0b' },
-            lagoon: { 50: '#e8f3f3', 200: '#a9d3d2', 500: '#2b8584', 600: '#1f6b6a', 800: '#123f3f' },
-            alert: { 50: '#fbeceb', 500: '#b43c32', 700: '#85261f' },
-          },
+          // ink, paper, rule, ember, lagoon, alert: app/utils/palette.ts, shared with the charts.
+          colors: PALETTE,
           fontFamily: {
             sans: ['"Source Sans 3"', 'system-ui', 'sans-serif'],
             mono: ['ui-monospace', 'SFMono-Regular', 'Menlo', 'monospace'],

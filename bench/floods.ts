@@ -44,12 +44,13 @@ const signIn = await fetch(`${base}/api/auth/sign-in`, {
 const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]!).filter((c) => c.startsWith('lensfield_session=')).at(-1)!
 const api = async (method: string, path: string, body?: unknown) => {
   const res = await fetch(base + path, { method, headers: { 'content-type': 'application/json', origin: base, cookie }, body: body ? JSON.stringify(body) : undefined })
-  const json = await res.json() as any
+  // Only the fields read below (designs, run) and the error message.
+  const json = await res.json() as { message?: string, designs?: Array<{ id: string }>, run?: { id: string } }
   if (res.status >= 400) throw new Error(`${method} ${path}: ${res.status} ${json.message}`)
   return json
 }
-const designs = (await api('GET', `/api/projects/${projectId}/designs`)).designs as Array<{ id: string }>
-const runId = (await api('POST', '/api/runs', { designId: designs[0]!.id, name: 'Flood probe', precision: { rays: 100_000 } })).run.id as string
+const designs = (await api('GET', `/api/projects/${projectId}/designs`)).designs ?? []
+const runId = (await api('POST', '/api/runs', { designId: designs[0]!.id, name: 'Flood probe', precision: { rays: 100_000 } })).run!.id
 
 const quantile = (xs: number[], q: number) => [...xs].sort((a, b) => a - b)[Math.min(xs.length - 1, Math.floor(q * xs.length))]!
 async function timed(path: string, n: number, headers: Record<string, string> = {}) {

@@ -124,7 +124,7 @@ const cannon = autocannon({
   requests: paths.map((path) => ({
     method: 'GET' as const,
     path,
-    setupRequest: (req: Record<string, any>, context: Record<string, any>) => {
+    setupRequest: (req: { headers?: Record<string, string> }, context: { cookie?: string }) => {
       context.cookie ??= cookies[client++ % cookies.length]
       return { ...req, headers: { ...(req.headers ?? {}), cookie: context.cookie, accept: 'application/json' } }
     },

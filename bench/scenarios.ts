@@ -8,7 +8,8 @@ const stack = {
   substrate: { index: 1.5, thicknessUm: 100, absorptionPerMm: 0 },
 }
 
-const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
+const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number,
+  number, number] } }
 
 export const benchScenarios: Record<string, ScenarioInput> = {
   // The example: close-packed hexagonal hemispheres (target ≥ 600 000 rays/s on one thread).

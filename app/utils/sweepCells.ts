@@ -1,5 +1,7 @@
 // Sweep-grid helpers for the result page: the paired-noise test for the best cell, the derived geometry of each
 // cell (sag, diameter) and a label colour that stays readable on every colour of the heat-map ramp.
+import { HEAT_RAMP, PALETTE } from './palette'
+
 
 /** A cell's figure with its standard error (same units). */
 export interface CellFigure { cellIndex: number; value: number; stdErr: number }
@@ -16,9 +18,8 @@ export function withinNoiseOfBest(best: CellFigure, others: CellFigure[], k = 2)
 }
 
 /** Heat-map ramp, light to dark (lagoon tints of the palette). */
-export const HEAT_RAMP = ['#e8f3f3', '#a9d3d2', '#2b8584', '#123f3f'] as const
-const INK = '#17202b'
-const PAPER = '#ffffff'
+const INK = PALETTE.ink.DEFAULT
+const PAPER = PALETTE.paper.raised
 
 function rgb(hex: string): [number, number, number] {
   const n = Number.parseInt(hex.slice(1), 16)

@@ -1,5 +1,5 @@
 // Liveness for people and scripts: the app version and whether the database answers.
-import { version } from '../../package.json'
+import { version } from '~~/package.json'
 
 export default defineApiHandler(async () => ({
   version,

@@ -4,6 +4,8 @@ import { sql } from 'drizzle-orm'
 import { bigint, boolean, check, customType, doublePrecision, index, integer, jsonb, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
 import type { ProjectLimits } from '../../shared/types/project'
 import type { CellSummary } from '../../shared/types/figures'
+import type { Scenario } from '../../shared/types/scenario'
+import type { SweepAxis } from '../../shared/types/sweep'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
 export const ROLES = roleEnum.enumValues
@@ -58,7 +60,7 @@ export const designs = pgTable('designs', {
   version: integer('version').notNull().default(1),
   authorId: text('author_id').references(() => users.id, { onDelete: 'set null' }),
   // Validated by shared/types/scenario.ts (scenarioSchema) before it is written.
-  scenario: jsonb('scenario').notNull(),
+  scenario: jsonb('scenario').$type<Scenario>().notNull(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [
@@ -88,9 +90,9 @@ export const runs = pgTable('runs', {
   kind: runKindEnum('kind').notNull(),
   name: text('name').notNull(),
   /** The design's scenario as it was when the run was created (validated by scenarioSchema). */
-  baseScenario: jsonb('base_scenario').notNull(),
+  baseScenario: jsonb('base_scenario').$type<Scenario>().notNull(),
   /** Sweep axes (shared/types/sweep.ts SweepAxis[]); [] for a single run. */
-  axes: jsonb('axes').notNull().default(sql`'[]'::jsonb`),
+  axes: jsonb('axes').$type<SweepAxis[]>().notNull().default(sql`'[]'::jsonb`),
   /** Figure the best cell is chosen by. */
   figure: text('figure').notNull().default('enhancement'),
   seed: bigint('seed', { mode: 'number' }).notNull(),
@@ -124,9 +126,9 @@ export const runCells = pgTable('run_cells', {
   runId: uuid('run_id').notNull().references(() => runs.id, { onDelete: 'cascade' }),
   cellIndex: integer('cell_index').notNull(),
   /** Axis values of this grid point, in axis order ([] for a single run). */
-  coordinates: jsonb('coordinates').notNull(),
+  coordinates: jsonb('coordinates').$type<number[]>().notNull(),
   /** The cell's resolved scenario; null when infeasible. */
-  scenario: jsonb('scenario'),
+  scenario: jsonb('scenario').$type<Scenario>(),
   infeasibleReason: text('infeasible_reason'),
   seed: bigint('seed', { mode: 'number' }).notNull(),
   status: cellStatusEnum('status').notNull().default('queued'),

@@ -39,7 +39,8 @@ export async function createApiToken(db: Db, userId: string, name: string) {
 }
 
 export function listApiTokens(db: Db, userId: string) {
-  return db.select({ id: apiTokens.id, name: apiTokens.name, prefix: apiTokens.prefix, createdAt: apiTokens.createdAt, lastUsedAt: apiTokens.lastUsedAt, revokedAt: apiTokens.revokedAt })
+  return db.select({ id: apiTokens.id, name: apiTokens.name, prefix: apiTokens.prefix, createdAt: apiTokens.createdAt, lastUsedAt: apiTokens.lastUsedAt,
+    revokedAt: apiTokens.revokedAt })
     .from(apiTokens).where(eq(apiTokens.userId, userId)).orderBy(desc(apiTokens.createdAt))
 }
 

@@ -70,7 +70,8 @@ export async function storeDataTable(db: Db, opts: {
     const [row] = await db.insert(dataTables).values({
       projectId: opts.projectId, kind: opts.kind, name: opts.name, fileName: opts.fileName, columns: parsed.columns,
       rows: parsed.rows, rowCount: parsed.rows.length, uploadedBy: opts.userId,
-      fit: fit ? { method: fit.method, rmsResidualNm: fit.rmsResidualNm, maxResidualNm: fit.maxResidualNm, smoothPoints: fit.smoothPoints, params: fit.params } : null,
+      fit: fit ? { method: fit.method, rmsResidualNm: fit.rmsResidualNm, maxResidualNm: fit.maxResidualNm, smoothPoints: fit.smoothPoints,
+        params: fit.params } : null,
       fittedRows: fit ? fit.rows : null,
       sourceText: new TextDecoder('utf-8').decode(opts.bytes),
     }).returning()

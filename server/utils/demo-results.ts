@@ -136,7 +136,8 @@ export async function loadDemoResults(db: Db): Promise<{ runId: string | null, s
       projectId: ctx.projectId, runId: sweepId, cellIndex: sweep.best!, note: DEMO_SHORTLIST.note, authorId: designer,
       chosen, chosenReason: chosen ? DEMO_SHORTLIST.chosenReason : null, chosenBy: chosen ? lead : null, chosenAt: chosen ? now : null,
     }).returning({ id: shortlistEntries.id })
-    const [comment] = await tx.insert(shortlistComments).values({ entryId: entry!.id, authorId: viewer, body: DEMO_SHORTLIST.comment }).returning({ id: shortlistComments.id })
+    const [comment] = await tx.insert(shortlistComments).values({ entryId: entry!.id, authorId: viewer,
+      body: DEMO_SHORTLIST.comment }).returning({ id: shortlistComments.id })
     await tx.insert(shortlistEvents).values([
       { projectId: ctx.projectId, entryId: entry!.id, actorId: designer, action: 'added', detail: { runId: sweepId, cellIndex: sweep.best, note: DEMO_SHORTLIST.note } },
       ...(chosen ? [{ projectId: ctx.projectId, entryId: entry!.id, actorId: lead, action: 'chosen', detail: { reason: DEMO_SHORTLIST.chosenReason, previous: null } }] : []),

@@ -43,7 +43,8 @@ export async function addToShortlist(db: Db, projectId: string, userId: string, 
   }
   try {
     return await db.transaction(async (tx) => {
-      const [entry] = await tx.insert(shortlistEntries).values({ projectId, runId: input.runId, cellIndex: input.cellIndex, note: input.note, authorId: userId }).returning()
+      const [entry] = await tx.insert(shortlistEntries).values({ projectId, runId: input.runId, cellIndex: input.cellIndex, note: input.note,
+        authorId: userId }).returning()
       await logEvent(tx, projectId, entry!.id, userId, 'added', { runId: input.runId, cellIndex: input.cellIndex, note: input.note, entry: await entryLabel(tx, entry!.id) })
       return entry!
     })
@@ -74,7 +75,8 @@ export function shortlistLabel(r: { run: string; seed: number; cell: number; des
 }
 
 async function entryLabel(tx: DbOrTx, entryId: string): Promise<string> {
-  const [r] = await tx.select({ run: runs.name, seed: runs.seed, cell: shortlistEntries.cellIndex, design: runs.designName, version: runs.designVersion, note: shortlistEntries.note })
+  const [r] = await tx.select({ run: runs.name, seed: runs.seed, cell: shortlistEntries.cellIndex, design: runs.designName, version: runs.designVersion,
+    note: shortlistEntries.note })
     .from(shortlistEntries).innerJoin(runs, eq(runs.id, shortlistEntries.runId)).where(eq(shortlistEntries.id, entryId))
   return r ? shortlistLabel(r) : 'a removed entry'
 }
@@ -140,7 +142,8 @@ export async function addComment(db: Db, entry: ShortlistEntry, userId: string, 
 }
 
 export function listComments(db: Db, entryId: string) {
-  return db.select({ id: shortlistComments.id, body: shortlistComments.body, createdAt: shortlistComments.createdAt, authorId: shortlistComments.authorId, author: users.name })
+  return db.select({ id: shortlistComments.id, body: shortlistComments.body, createdAt: shortlistComments.createdAt, authorId: shortlistComments.authorId,
+    author: users.name })
     .from(shortlistComments).leftJoin(users, eq(users.id, shortlistComments.authorId))
     .where(eq(shortlistComments.entryId, entryId)).orderBy(asc(shortlistComments.createdAt))
 }
@@ -177,7 +180,8 @@ export async function listShortlist(db: Db, projectId: string) {
 }
 
 export function listShortlistHistory(db: Db, projectId: string) {
-  return db.select({ id: shortlistEvents.id, entryId: shortlistEvents.entryId, action: shortlistEvents.action, detail: shortlistEvents.detail, createdAt: shortlistEvents.createdAt, actorId: shortlistEvents.actorId, actor: users.name })
+  return db.select({ id: shortlistEvents.id, entryId: shortlistEvents.entryId, action: shortlistEvents.action, detail: shortlistEvents.detail,
+    createdAt: shortlistEvents.createdAt, actorId: shortlistEvents.actorId, actor: users.name })
     .from(shortlistEvents).leftJoin(users, eq(users.id, shortlistEvents.actorId))
     .where(eq(shortlistEvents.projectId, projectId)).orderBy(desc(shortlistEvents.createdAt)).limit(500)
 }

@@ -27,7 +27,8 @@ export type ProjectLimits = z.infer<typeof projectLimitsSchema>
 export const projectPatchSchema = z.object({ limits: projectLimitsSchema.nullable() }).strict()
 
 /** A lens geometry checked against the limits: one line per broken limit, in the trade's words. */
-export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined, limits: ProjectLimits | null | undefined): string[] {
+export function limitBreaches(lens: { sagUm: number; diameterUm: number; pitchUm: number } | null | undefined,
+  limits: ProjectLimits | null | undefined): string[] {
   if (!lens || !limits) return []
   const out: string[] = []
   // As geometry is shown everywhere (0.01 µm, 3 significant digits); when the breach is finer than that, both sides

@@ -72,7 +72,8 @@ export const spectrumSchema = z.union([
  */
 export const indexSchema = z.union([
   z.number().min(1).max(4),
-  z.object({ sellmeier: z.object({ B: z.tuple([z.number(), z.number(), z.number()]), C: z.tuple([z.number().min(0), z.number().min(0), z.number().min(0)]) }).strict() }).strict(),
+  z.object({ sellmeier: z.object({ B: z.tuple([z.number(), z.number(), z.number()]), C: z.tuple([z.number().min(0), z.number().min(0),
+    z.number().min(0)]) }).strict() }).strict(),
   z.object({ cauchy: z.object({ A: z.number().min(1).max(4), B: z.number().default(0), C: z.number().default(0) }).strict() }).strict(),
   z.object({
     table: z.array(z.tuple([wavelengthNm, z.number().min(1, 'n must be at least 1').max(4, 'n must be at most 4'), z.number().min(0, 'k must be at least 0').max(10)]))

@@ -97,7 +97,9 @@ describe('a sweep through the queue', () => {
 
     const detail = await t.client.get(`/api/sweeps/${sweep.id}`)
     expect(detail.status).toBe(200)
-    const cells = detail.body.cells as Array<{ cellIndex: number; status: string; summary: any; infeasibleReason: string | null; raysDone: number; seed: number }>
+    const cells = detail.body.cells as Array<{
+      cellIndex: number; status: string; summary: any; infeasibleReason: string | null; raysDone: number; seed: number
+    }>
     expect(cells.map((c) => c.status)).toEqual(['done', 'infeasible', 'done', 'infeasible'])
     expect(cells[1]!.infeasibleReason).toMatch(/fill factor 0.95 is above the hexagonal maximum/)
 

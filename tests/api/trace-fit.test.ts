@@ -31,7 +31,8 @@ async function storedCount() {
 // ±2 nm ripple and a 2 nm rise at the last point (profilometer noise of that size is common practice).
 const R = 10, a = 5
 const sphere = (r: number) => Math.sqrt(R * R - r * r) - Math.sqrt(R * R - a * a)
-const noisyRows = Array.from({ length: 51 }, (_, i) => { const r = (a * i) / 50; return [r, Math.max(0, sphere(r) + (i % 2 ? 0.002 : -0.002)) + (i === 50 ? 0.004 : 0)] })
+const noisyRows = Array.from({ length: 51 }, (_, i) => { const r = (a * i) / 50; return [r, Math.max(0,
+  sphere(r) + (i % 2 ? 0.002 : -0.002)) + (i === 50 ? 0.004 : 0)] })
 const csv = (rows: number[][]) => `# stylus, 2 µm tip\nr_um,height_um\n${rows.map((r) => `${r[0]!.toFixed(4)},${r[1]!.toFixed(6)}`).join('\n')}\n`
 
 describe('stylus traces at upload', () => {

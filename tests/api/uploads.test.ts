@@ -141,7 +141,8 @@ describe('good uploads', () => {
   it('a measured lens profile is used by a run through the queue: a sampled sphere matches the analytic cap within 5σ', async () => {
     // D 10 µm, sag 3 µm spherical cap sampled at 0.05 µm (standard cap geometry: Rc = (a² + h²)/(2h)).
     const a = 5, h = 3, Rc = (a * a + h * h) / (2 * h)
-    const rows: Array<[number, number]> = Array.from({ length: 101 }, (_, i) => { const r = (a * i) / 100; return [r, Number((Math.sqrt(Rc * Rc - r * r) - (Rc - h)).toFixed(9))] })
+    const rows: Array<[number, number]> = Array.from({ length: 101 }, (_, i) => { const r = (a * i) / 100; return [r,
+      Number((Math.sqrt(Rc * Rc - r * r) - (Rc - h)).toFixed(9))] })
     const up = await upload('lens_profile', lensCsv(rows), 'cap-3um.csv', 'Sampled 3 µm cap')
     expect(up.status).toBe(201)
     const use = (await owner.client.get(`/api/tables/${up.body.table.id}`)).body.table.use

@@ -187,7 +187,8 @@ describe('conservation: every launched ray ends in exactly one channel (property
           },
           reflector: { reflectance: o.rb, diffuseFraction: o.fd },
           substrate: { index: o.nS, thicknessUm: 20, absorptionPerMm: o.alpha },
-          lensArray: { lattice: o.lattice, pitchUm: 10, diameterUm: D, sagUm: Math.min(hMax, 2 * D) * o.hf * 0.999, shape: o.shape, conicConstant: o.k, index: o.nL },
+          lensArray: { lattice: o.lattice, pitchUm: 10, diameterUm: D, sagUm: Math.min(hMax, 2 * D) * o.hf * 0.999, shape: o.shape, conicConstant: o.k,
+            index: o.nL },
           trace: { maxEvents: 2000 },
         })
         const t = traceScene(sc, 2000, o.seed)

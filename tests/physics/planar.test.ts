@@ -1,4 +1,5 @@
-// Planar stacks against closed forms and a 1-D quadrature (escape cone 1 − cos θc: Greenham, Friend & Bradley, Adv. Mater. 6, 491 (1994), the formula from memory;
+// Planar stacks against closed forms and a 1-D quadrature (escape cone 1 − cos θc: Greenham, Friend & Bradley, Adv. Mater. 6, 491 (1994), the formula from
+// memory;
 // Fresnel coefficients: Hecht, Optics, ch. 4).
 import { describe, expect, it } from 'vitest'
 import { fresnelAveraged } from '../../shared/optics/interfaces'
@@ -128,7 +129,8 @@ describe('half-luminance angle (closed form, common practice)', () => {
     expect(r.luminance.halfLuminanceAngleDeg).not.toBeNull()
     // σθ ≈ √(σL,window² + (½σL,axis)²)/|dL/dθ|, |dL/dθ| = sin2θ = 1 per rad at 45° (L normalised on axis)
     const n = 200_000
-    const frac = (a: number, b: number) => Math.cos((a * Math.PI) / 180) ** 4 - Math.cos((b * Math.PI) / 180) ** 4 // share of a cone ring: ∫cos³θ sinθ dθ ∝ cos⁴θ
+    // share of a cone ring: ∫cos³θ sinθ dθ ∝ cos⁴θ
+    const frac = (a: number, b: number) => Math.cos((a * Math.PI) / 180) ** 4 - Math.cos((b * Math.PI) / 180) ** 4
     const sWin = 1 / Math.sqrt(n * frac(42.5, 47.5)) * 0.5, sAxis = 1 / Math.sqrt(n * frac(0, 5))
     const sigmaDeg = (Math.hypot(sWin, 0.5 * sAxis) * 180) / Math.PI
     expectWithinSigma('half-luminance angle (deg)', r.luminance.halfLuminanceAngleDeg!, 45, sigmaDeg)

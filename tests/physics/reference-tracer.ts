@@ -60,7 +60,8 @@ export function referenceTrace(s: RefStack, rays: number, seed: number) {
       if (where === 'emitter') {
         if (d[2] < 0) {
           if (u() >= s.rb) { fate = 'reflector'; break }
-          if (u() < s.fd) { const m = Math.sqrt(u()), f = 2 * Math.PI * u(), q = Math.sqrt(1 - m * m); d = [q * Math.cos(f), q * Math.sin(f), m] } else d = [d[0], d[1], -d[2]]
+          if (u() < s.fd) { const m = Math.sqrt(u()), f = 2 * Math.PI * u(), q = Math.sqrt(1 - m * m); d = [q * Math.cos(f), q * Math.sin(f),
+            m] } else d = [d[0], d[1], -d[2]]
           continue
         }
         if (fresnel(d[2], s.nE, s.nS).R === 1) { fate = 'waveguided'; break }

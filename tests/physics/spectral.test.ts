@@ -15,14 +15,16 @@ const lensExample: ScenarioInput = {
 describe('spectral with constant indices = monochromatic', () => {
   it.each([['averaged', 701, 702], ['polarized', 703, 704]] as const)('hex hemispheres, Gaussian 530/60 nm vs no spectrum, %s — seeds %s, %s', (fresnel, s1, s2) => {
     const mono = traceScenario(scenarioSchema.parse({ ...lensExample, trace: { fresnel } }), { rays: 600_000, seed: s1 })
-    const spec = traceScenario(scenarioSchema.parse({ ...lensExample, emitter: { ...lensExample.emitter, spectrum: { peakNm: 530, fwhmNm: 60 } }, trace: { fresnel } }), { rays: 600_000, seed: s2 })
+    const spec = traceScenario(scenarioSchema.parse({ ...lensExample, emitter: { ...lensExample.emitter, spectrum: { peakNm: 530, fwhmNm: 60 } },
+      trace: { fresnel } }), { rays: 600_000, seed: s2 })
     expectWithinSigma('extraction', spec.extraction, mono.extraction, Math.hypot(spec.extractionStdErr, mono.extractionStdErr))
     // the flat companion is computed by quadrature (exact): with constant indices the spectrum changes nothing at all
     expect(spec.planar.method).toBe('quadrature')
     expect(Math.abs(spec.planar.extraction - mono.planar.extraction)).toBeLessThan(1e-12)
   })
   it('planar 1.7 | 1.5 | air, Rb 0.8, averaged, table spectrum: 0.1678 (the quadrature value listed in planar.test.ts) — seed 705', () => {
-    const r = traceScenario(scenarioSchema.parse({ ...lensExample, lensArray: null, emitter: { ...lensExample.emitter, spectrum: { table: [[450, 1], [550, 0.3], [650, 0.8]] } } }), { rays: 600_000, seed: 705 })
+    const r = traceScenario(scenarioSchema.parse({ ...lensExample, lensArray: null, emitter: { ...lensExample.emitter, spectrum: { table: [[450, 1], [550, 0.3],
+      [650, 0.8]] } } }), { rays: 600_000, seed: 705 })
     expectWithinSigma('extraction', r.extraction, 0.1678, Math.hypot(r.extractionStdErr, 5e-5))
   })
 })

@@ -101,7 +101,8 @@ describe('preview rays', () => {
   }
   it('control: the same check tells a forward-peaked table from an isotropic emitter (caps and planar)', () => {
     for (const lensArray of [null, hemi]) {
-      const rays = tracePreviewRays(scenarioSchema.parse({ ...stack, emitter: { index: 1.7, angularProfile: forward }, lensArray }), { rays: N_PREVIEW, seed: 11, drawThicknessUm: 15 })
+      const rays = tracePreviewRays(scenarioSchema.parse({ ...stack, emitter: { index: 1.7, angularProfile: forward }, lensArray }), { rays: N_PREVIEW,
+        seed: 11, drawThicknessUm: 15 })
       const p1 = rays.filter((r) => r.fate !== 'lost').length / N_PREVIEW
       const p2 = coreEscape({ ...stack, lensArray }, N_CORE)
       const sigma = Math.sqrt(p2 * (1 - p2) * (1 / N_PREVIEW + 1 / N_CORE))

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { contrastRatio, HEAT_RAMP, labelColour, rampColour, relativeLuminance, withinNoiseOfBest } from '../../app/utils/sweepCells'
+import { contrastRatio, labelColour, rampColour, relativeLuminance, withinNoiseOfBest } from '../../app/utils/sweepCells'
+import { HEAT_RAMP } from '../../app/utils/palette'
 
 describe('withinNoiseOfBest (difference of independent estimates, σ_diff = √(σ1² + σ2²))', () => {
   const best = { cellIndex: 5, value: 2.081, stdErr: 0.0246 }

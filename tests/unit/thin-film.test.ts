@@ -43,7 +43,8 @@ describe('perfect-mirror limit: image-dipole closed forms, x = 2kd (Novotny & He
   it.each([0.05, 0.1, 0.2, 0.35, 0.5, 0.75, 1.0, 1.5])('d = %s λ: F⊥ and F∥ within 1 %%', (f) => {
     const d = (f * lam) / n
     const x = 2 * ((2 * Math.PI * n) / lam) * d
-    const tf: ThinFilm = { layers: [layer(2 * d, n, 0, true)], cathode: { material: { n: 0.001, k: 1e4 } }, emitterPositionNm: d, horizontalDipoleFraction: 2 / 3, radiativeEfficiency: 1 }
+    const tf: ThinFilm = { layers: [layer(2 * d, n, 0, true)], cathode: { material: { n: 0.001, k: 1e4 } }, emitterPositionNm: d,
+      horizontalDipoleFraction: 2 / 3, radiativeEfficiency: 1 }
     const r = thinFilmAt(tf, lam, { glassIndex: n })
     expect(Math.abs(r.purcell.vertical / fPerp(x) - 1)).toBeLessThan(0.01)
     expect(Math.abs(r.purcell.horizontal / fPar(x) - 1)).toBeLessThan(0.01)
@@ -129,7 +130,8 @@ describe('stack reflectance seen from the glass', () => {
 })
 
 describe('the glass angular table and the cache', () => {
-  const tf = stack({ layers: [layer(100, 1.9, 0.01), layer(40, 1.75), layer(20, 1.75, 0, true), layer(50, 1.75)], cathode: { material: { n: 0.96, k: 6.69 } }, emitterPositionNm: 10 })
+  const tf = stack({ layers: [layer(100, 1.9, 0.01), layer(40, 1.75), layer(20, 1.75, 0, true), layer(50, 1.75)], cathode: { material: { n: 0.96, k: 6.69 } },
+    emitterPositionNm: 10 })
   it('∫ P_Ω dΩ over the tabulated glass angles equals the glass share from the u integral within 1e-3', () => {
     const t = thinFilmTable(tf, [550], { glassIndex: 1.5 }, 721)
     let s = 0, p = 0
@@ -177,7 +179,8 @@ describe('the glass angular table and the cache', () => {
 })
 
 describe('thinFilmSchema: bad stacks get field-named messages in the trade\'s words', () => {
-  const good: ThinFilmInput = { layers: [layer(100, 1.9, 0.01), layer(20, 1.75, 0, true), layer(50, 1.75)], cathode: { material: { n: 0.96, k: 6.69 } }, emitterPositionNm: 10 }
+  const good: ThinFilmInput = { layers: [layer(100, 1.9, 0.01), layer(20, 1.75, 0, true), layer(50, 1.75)], cathode: { material: { n: 0.96, k: 6.69 } },
+    emitterPositionNm: 10 }
   const fails = (input: unknown, path: (string | number)[], word: RegExp) => {
     const r = thinFilmSchema.safeParse(input)
     expect(r.success).toBe(false)

@@ -1,8 +1,8 @@
 // Sign-in: throttled per account and per address (server/utils/sign-in-limit.ts), one message for every failure
 // (no hint whether the e-mail has an account; unknown e-mails cost the same argon2 time), and a new session id on
 // every sign-in: a session the browser already carried is ended first, so a planted cookie never becomes a login.
-import { signInSchema } from '../../../shared/types/account'
-import { assertSignInAllowed, clearSignInFailures, recordSignInFailure } from '../../utils/sign-in-limit'
+import { signInSchema } from '#shared/types/account'
+import { assertSignInAllowed, clearSignInFailures, recordSignInFailure } from '~~/server/utils/sign-in-limit'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(signInSchema))

@@ -1,5 +1,5 @@
 // Creates an account, its own team (the new user is its lead) and a session.
-import { signUpSchema } from '../../../shared/types/account'
+import { signUpSchema } from '#shared/types/account'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(signUpSchema))

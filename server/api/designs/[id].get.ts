@@ -1,5 +1,5 @@
-import { idParamSchema } from '../../../shared/types/project'
-import { jobSettings } from '../../queue/config'
+import { idParamSchema } from '#shared/types/project'
+import { jobSettings } from '~~/server/queue/config'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,6 +1,6 @@
 // Saves a change to a design as its next version.
-import { designUpdateSchema } from '../../../shared/types/design'
-import { idParamSchema } from '../../../shared/types/project'
+import { designUpdateSchema } from '#shared/types/design'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,5 +1,5 @@
 // A lead withdraws an unused invitation.
-import { idParamSchema } from '../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

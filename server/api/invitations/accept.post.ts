@@ -1,5 +1,5 @@
 // Uses an invitation link once: joins the signed-in account (same e-mail) or creates the account, with the role.
-import { invitationAcceptSchema } from '../../../shared/types/team'
+import { invitationAcceptSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(invitationAcceptSchema))

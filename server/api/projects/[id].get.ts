@@ -1,4 +1,4 @@
-import { idParamSchema } from '../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

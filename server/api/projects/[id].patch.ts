@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm'
-import { projects } from '../../db/schema'
-import { idParamSchema, projectPatchSchema } from '../../../shared/types/project'
+import { projects } from '~~/server/db/schema'
+import { idParamSchema, projectPatchSchema } from '#shared/types/project'
 
 // Only the lead states the project's fabrication limits (null clears them).
 export default defineApiHandler(async (event) => {

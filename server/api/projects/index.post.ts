@@ -1,4 +1,4 @@
-import { projectCreateSchema } from '../../../shared/types/project'
+import { projectCreateSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(projectCreateSchema))

@@ -1,5 +1,5 @@
-import { idParamSchema } from '../../../shared/types/project'
-import { runProgress } from '../../runs/progress'
+import { idParamSchema } from '#shared/types/project'
+import { runProgress } from '~~/server/runs/progress'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

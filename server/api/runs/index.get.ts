@@ -1,4 +1,4 @@
-import { runListQuerySchema } from '../../../shared/types/run'
+import { runListQuerySchema } from '#shared/types/run'
 
 export default defineApiHandler(async (event) => {
   const q = await getValidatedQuery(event, zodValidator(runListQuerySchema))

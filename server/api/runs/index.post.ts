@@ -1,4 +1,4 @@
-import { runRequestSchema } from '../../../shared/types/sweep'
+import { runRequestSchema } from '#shared/types/sweep'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(runRequestSchema))

@@ -1,5 +1,5 @@
 // One shortlist entry with its comments.
-import { idParamSchema } from '../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,6 +1,6 @@
 // Edits the note (its author or a lead).
-import { idParamSchema } from '../../../shared/types/project'
-import { shortlistNoteSchema } from '../../../shared/types/shortlist'
+import { idParamSchema } from '#shared/types/project'
+import { shortlistNoteSchema } from '#shared/types/shortlist'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

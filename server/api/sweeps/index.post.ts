@@ -1,4 +1,4 @@
-import { sweepRequestSchema } from '../../../shared/types/sweep'
+import { sweepRequestSchema } from '#shared/types/sweep'
 
 export default defineApiHandler(async (event) => {
   const body = await readValidatedBody(event, zodValidator(sweepRequestSchema))

@@ -1,6 +1,6 @@
 // One uploaded table with its rows (raw, and fitted for a fitted trace), the file as uploaded, and the scenario
 // fragment it becomes.
-import { idParamSchema } from '../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -115,7 +115,8 @@ export function integrandAt(P: PreparedStack, opt: Required<ThinFilmOptics>, alp
 
 // Gauss–Kronrod 7–15 nodes on [−1, 1] (Kronrod 1965; tabulated in QUADPACK, Piessens et al. 1983).
 const XGK = [0.9914553711208126, 0.9491079123427585, 0.8648644233597691, 0.7415311855993945, 0.5860872354676911, 0.4058451513773972, 0.20778495500789848, 0]
-const WGK = [0.022935322010529224, 0.06309209262997856, 0.10479001032225019, 0.14065325971552592, 0.1690047266392679, 0.19035057806478542, 0.20443294007529889, 0.20948214108472782]
+const WGK = [0.022935322010529224, 0.06309209262997856, 0.10479001032225019, 0.14065325971552592, 0.1690047266392679, 0.19035057806478542, 0.20443294007529889,
+  0.20948214108472782]
 const WG = [0.1294849661688697, 0.27970539148927664, 0.3818300505051189, 0.4179591836734694]
 
 /** What one wavelength's integration returns: per-slot integrals split by u region. */
@@ -204,7 +205,8 @@ export function integrateStack(P: PreparedStack, opt: Required<ThinFilmOptics>):
           gr[k] = gr[k]! + gi * f
         }
       }
-      const err = h * (Math.abs(kr[0]! - gr[0]!) + Math.abs(kr[1]! - gr[1]!) + Math.abs(kr[2]! - gr[2]!) + Math.abs(kr[3]! - gr[3]!) + Math.abs(kr[5]! - gr[5]!))
+      const err = h * (Math.abs(kr[0]! - gr[0]!) + Math.abs(kr[1]! - gr[1]!) + Math.abs(kr[2]! - gr[2]!) + Math.abs(kr[3]! - gr[3]!)
+        + Math.abs(kr[5]! - gr[5]!))
       const mag = h * (Math.abs(kr[0]!) + Math.abs(kr[1]!) + Math.abs(kr[2]!))
       if (err <= TOL + RTOL * mag || depth >= MAX_DEPTH || evaluations > MAX_EVALUATIONS) {
         for (let k = 0; k < NV; k++) acc[k] = acc[k]! + h * kr[k]!
@@ -265,7 +267,8 @@ export function findPoles(P: PreparedStack, ua: number, ub: number): number[] {
 }
 
 function fullOptics(o: ThinFilmOptics): Required<ThinFilmOptics> {
-  return { glassIndex: o.glassIndex, glassThicknessUm: o.glassThicknessUm ?? 0, glassAbsorptionPerMm: o.glassAbsorptionPerMm ?? 0, outsideIndex: o.outsideIndex ?? 1 }
+  return { glassIndex: o.glassIndex, glassThicknessUm: o.glassThicknessUm ?? 0, glassAbsorptionPerMm: o.glassAbsorptionPerMm ?? 0,
+    outsideIndex: o.outsideIndex ?? 1 }
 }
 
 /** One wavelength's outcome. Every fraction is of the total (orientation-mixed) dipole power F. */
@@ -335,7 +338,8 @@ export function thinFilmAt(tf: ThinFilm, wavelengthNm: number, optics: ThinFilmO
  * (from the normal, into the glass): the future ray source's angular distribution. From the per-u power P(u):
  * P_Ω = P(u)·(du/dθ_g)/(2π sin θ_g) = (P(u)/u)·(n_g/n_e)²·cos θ_g/(2π).
  */
-export function glassAngular(tf: ThinFilm, wavelengthNm: number, optics: ThinFilmOptics, thetaGlassRad: ArrayLike<number>, F?: number): { s: Float64Array; p: Float64Array } {
+export function glassAngular(tf: ThinFilm, wavelengthNm: number, optics: ThinFilmOptics, thetaGlassRad: ArrayLike<number>,
+  F?: number): { s: Float64Array; p: Float64Array } {
   const P = prepareStack(tf, optics.glassIndex, wavelengthNm)
   if (P.e < 0) throw new Error('the stack has no emitting layer')
   const opt = fullOptics(optics)
@@ -357,7 +361,8 @@ export function glassAngular(tf: ThinFilm, wavelengthNm: number, optics: ThinFil
 }
 
 /** K(u) for the chart: per component and the Θ mix, at the given u (u ≠ 1). */
-export function dissipationSpectrum(tf: ThinFilm, wavelengthNm: number, optics: ThinFilmOptics, u: ArrayLike<number>): { teH: Float64Array; tmH: Float64Array; tmV: Float64Array; mixed: Float64Array } {
+export function dissipationSpectrum(tf: ThinFilm, wavelengthNm: number, optics: ThinFilmOptics,
+  u: ArrayLike<number>): { teH: Float64Array; tmH: Float64Array; tmV: Float64Array; mixed: Float64Array } {
   const P = prepareStack(tf, optics.glassIndex, wavelengthNm)
   if (P.e < 0) throw new Error('the stack has no emitting layer')
   const opt = fullOptics(optics)

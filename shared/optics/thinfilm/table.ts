@@ -54,7 +54,8 @@ const cache = new Map<string, ThinFilmTable>()
 /** Tables kept per process (each ~0.3 MB for 81 × 91): enough for a sweep's neighbouring cells. */
 const CACHE_ENTRIES = 32
 
-export function computeThinFilmTable(tf: ThinFilm, wavelengthsNm: readonly number[], optics: ThinFilmOptics, angleCount = DEFAULT_GLASS_ANGLE_COUNT): ThinFilmTable {
+export function computeThinFilmTable(tf: ThinFilm, wavelengthsNm: readonly number[], optics: ThinFilmOptics,
+  angleCount = DEFAULT_GLASS_ANGLE_COUNT): ThinFilmTable {
   const W = wavelengthsNm.length, A = angleCount
   const glassAnglesRad = new Float64Array(A)
   for (let i = 0; i < A; i++) glassAnglesRad[i] = (i / (A - 1)) * (Math.PI / 2)
@@ -80,7 +81,8 @@ export function computeThinFilmTable(tf: ThinFilm, wavelengthsNm: readonly numbe
 }
 
 /** The cached table (computed on a miss). */
-export function thinFilmTable(tf: ThinFilm, wavelengthsNm: readonly number[] = DEFAULT_WAVELENGTHS_NM, optics: ThinFilmOptics, angleCount = DEFAULT_GLASS_ANGLE_COUNT): ThinFilmTable {
+export function thinFilmTable(tf: ThinFilm, wavelengthsNm: readonly number[] = DEFAULT_WAVELENGTHS_NM, optics: ThinFilmOptics,
+  angleCount = DEFAULT_GLASS_ANGLE_COUNT): ThinFilmTable {
   const key = thinFilmCacheKey(tf, wavelengthsNm, optics, angleCount)
   const hit = cache.get(key)
   if (hit) return hit

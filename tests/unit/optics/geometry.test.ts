@@ -45,7 +45,8 @@ describe('fill factor (Conway & Sloane ch. 1)', () => {
 
 describe('conic cap through c = 2h/(a² + (1+k)h²) (derived in shared/types/geometry.ts)', () => {
   it('sag(a) = h for spheres, paraboloids, hyperboloids and ellipsoids (property, seed 5)', () => {
-    fc.assert(fc.property(fc.double({ min: 1, max: 100, noNaN: true }), fc.double({ min: 0.01, max: 1, noNaN: true }), fc.double({ min: -5, max: 3, noNaN: true }), (D, frac, k) => {
+    fc.assert(fc.property(fc.double({ min: 1, max: 100, noNaN: true }), fc.double({ min: 0.01, max: 1, noNaN: true }), fc.double({ min: -5, max: 3,
+      noNaN: true }), (D, frac, k) => {
       const a = D / 2
       const hMax = k === -1 ? 10 * a : 0.999 * maxConicSagUm(D, k)
       const h = frac * Math.min(hMax, 2 * a)
@@ -74,7 +75,8 @@ describe('core lattice and cap intersection', () => {
   })
   it('capHit lands on the surface, within the cap, and the normal is the surface gradient (seed 9)', () => {
     const n = new Float64Array(3)
-    fc.assert(fc.property(fc.double({ min: -0.99, max: 0.99, noNaN: true }), fc.double({ min: -0.99, max: 0.99, noNaN: true }), fc.double({ min: -1, max: 2, noNaN: true }),
+    fc.assert(fc.property(fc.double({ min: -0.99, max: 0.99, noNaN: true }), fc.double({ min: -0.99, max: 0.99, noNaN: true }), fc.double({ min: -1, max: 2,
+      noNaN: true }),
       fc.double({ min: 0, max: 2 * Math.PI, noNaN: true }), fc.double({ min: 0.05, max: 1, noNaN: true }), (u, v, k, phi, mu) => {
         // a ray from a point inside the base disc, going up
         const D = 10, a = 5, t = 3
@@ -97,7 +99,8 @@ describe('core lattice and cap intersection', () => {
       }), { seed: 9 })
   })
   it('an upgoing ray from inside the base disc always meets the cap (seed 13)', () => {
-    fc.assert(fc.property(fc.double({ min: -0.7, max: 0.7, noNaN: true }), fc.double({ min: -0.7, max: 0.7, noNaN: true }), fc.double({ min: 0.01, max: 1, noNaN: true }), fc.double({ min: 0, max: 6.28, noNaN: true }), (u, v, mu, phi) => {
+    fc.assert(fc.property(fc.double({ min: -0.7, max: 0.7, noNaN: true }), fc.double({ min: -0.7, max: 0.7, noNaN: true }), fc.double({ min: 0.01, max: 1,
+      noNaN: true }), fc.double({ min: 0, max: 6.28, noNaN: true }), (u, v, mu, phi) => {
       const s = Math.sqrt(1 - mu * mu)
       const c = conicCurvaturePerUm(10, 5, 0)
       expect(capHit(u * 5, v * 5, 0, s * Math.cos(phi), s * Math.sin(phi), mu, 5, c, 1, 5, false)).toBeGreaterThan(0)
@@ -108,7 +111,8 @@ describe('core lattice and cap intersection', () => {
 describe('tracer wrap to the nearest site (two rectangular sublattices) agrees with nearestSite (seed 17)', () => {
   it('hexagonal and square, far from the origin too', () => {
     const a = new Float64Array(4), b = new Float64Array(3)
-    fc.assert(fc.property(fc.boolean(), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: 0.5, max: 50, noNaN: true }), (hex, x, y, p) => {
+    fc.assert(fc.property(fc.boolean(), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: -1e4, max: 1e4, noNaN: true }), fc.double({ min: 0.5,
+      max: 50, noNaN: true }), (hex, x, y, p) => {
       nearestSite(hex, p, x, y, a)
       wrapToSite(hex, p, p * Math.sqrt(3), x, y, b)
       const da = (x - a[0]!) ** 2 + (y - a[1]!) ** 2, db = (x - b[1]!) ** 2 + (y - b[2]!) ** 2

@@ -20,7 +20,8 @@ const sampledSphere = (a: number, h: number): Array<[number, number]> => {
   const Rc = (a * a + h * h) / (2 * h)
   return Array.from({ length: 41 }, (_, i) => [(a * i) / 40, Math.max(0, Math.sqrt(Rc * Rc - ((a * i) / 40) ** 2) - (Rc - h))] as [number, number])
 }
-const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
+const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number,
+  number, number] } }
 const table = { table: [[0, 1], [30, 0.9], [60, 0.5], [89, 0.05], [90, 0]] as Array<[number, number]> }
 
 /** The OLED stack as the source (no reflector: the stack reflects). */

@@ -5,7 +5,8 @@ import { indexAt, parseScenario, scenarioSchema, type ScenarioInput } from '../.
 import { packScene, S_SPECTRAL_OFFSET } from '../../../shared/optics/scene'
 import { sampleWavelength, SP_AS, SP_NS, spectralValue, SPECTRAL_GRID } from '../../../shared/optics/spectral'
 
-const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
+const bk7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number,
+  number, number] } }
 const base: ScenarioInput = {
   emitter: { index: 1.7, angularProfile: 'isotropic' },
   reflector: { reflectance: 0.8 },
@@ -40,7 +41,8 @@ describe('spectrum sampling and the packed tables', () => {
     expect(Math.sqrt(m2 - m1 * m1)).toBeCloseTo(60 / (2 * Math.sqrt(2 * Math.LN2)), 0) // ±3 FWHM truncation is < 1e-9 of the mass
   })
   it('a line spectrum puts every ray at its wavelength; the tables hold n(λ) and the 4πk/λ absorption', () => {
-    const sc = scenarioSchema.parse({ ...base, emitter: { ...base.emitter, spectrum: { wavelengthNm: 610 } }, substrate: { index: { table: [[400, 1.6, 1e-5], [800, 1.5, 1e-5]] }, thicknessUm: 100, absorptionPerMm: 1 } })
+    const sc = scenarioSchema.parse({ ...base, emitter: { ...base.emitter, spectrum: { wavelengthNm: 610 } }, substrate: { index: { table: [[400, 1.6, 1e-5],
+      [800, 1.5, 1e-5]] }, thicknessUm: 100, absorptionPerMm: 1 } })
     const s = packScene(sc), at = s[S_SPECTRAL_OFFSET]!
     const cell = new Float64Array(2)
     for (const u of [0.001, 0.5, 0.999]) expect(sampleWavelength(s, at, u, cell)).toBe(610)

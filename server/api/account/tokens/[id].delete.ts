@@ -1,4 +1,4 @@
-import { idParamSchema } from '../../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const user = requireUser(event)

@@ -1,5 +1,5 @@
 // Creates a personal API token; the secret is in this reply only.
-import { apiTokenCreateSchema } from '../../../../shared/types/team'
+import { apiTokenCreateSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const user = requireUser(event)

@@ -1,5 +1,5 @@
 // Sets a new password from a reset link; every existing session of the account is ended, a new one started.
-import { passwordResetConfirmSchema } from '../../../../shared/types/team'
+import { passwordResetConfirmSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const { token, password } = await readValidatedBody(event, zodValidator(passwordResetConfirmSchema))

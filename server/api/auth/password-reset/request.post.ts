@@ -1,5 +1,5 @@
 // Always 202 with the same message; the mail (if the address has an account) goes out after the reply.
-import { passwordResetRequestSchema } from '../../../../shared/types/team'
+import { passwordResetRequestSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const { email } = await readValidatedBody(event, zodValidator(passwordResetRequestSchema))

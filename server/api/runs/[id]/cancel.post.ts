@@ -1,5 +1,5 @@
-import { idParamSchema } from '../../../../shared/types/project'
-import { cancelRun } from '../../../runs/cancel'
+import { idParamSchema } from '#shared/types/project'
+import { cancelRun } from '~~/server/runs/cancel'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

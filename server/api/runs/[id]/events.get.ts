@@ -2,9 +2,9 @@
 // every 15 s so proxies keep the stream open. Ends by itself once the run has ended. The state is read once per
 // run for all its streams (server/utils/progress.ts); streams per session and per address are capped (429,
 // server/utils/stream-limits.ts).
-import { idParamSchema } from '../../../../shared/types/project'
-import { readRunState, subscribeProgress, type RunState } from '../../../utils/progress'
-import { takeStreamSlot } from '../../../utils/stream-limits'
+import { idParamSchema } from '#shared/types/project'
+import { readRunState, subscribeProgress, type RunState } from '~~/server/utils/progress'
+import { takeStreamSlot } from '~~/server/utils/stream-limits'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

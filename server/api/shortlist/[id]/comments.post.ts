@@ -1,6 +1,6 @@
 // A short comment on a shortlist note (any member).
-import { idParamSchema } from '../../../../shared/types/project'
-import { shortlistCommentSchema } from '../../../../shared/types/shortlist'
+import { idParamSchema } from '#shared/types/project'
+import { shortlistCommentSchema } from '#shared/types/shortlist'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

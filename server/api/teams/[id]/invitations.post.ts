@@ -1,6 +1,6 @@
 // A lead invites an e-mail address into the team with a role; the link goes out by mail only.
-import { idParamSchema } from '../../../../shared/types/project'
-import { invitationCreateSchema } from '../../../../shared/types/team'
+import { idParamSchema } from '#shared/types/project'
+import { invitationCreateSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,6 +1,6 @@
 import { asc, eq } from 'drizzle-orm'
-import { memberships, users } from '../../../db/schema'
-import { idParamSchema } from '../../../../shared/types/project'
+import { memberships, users } from '~~/server/db/schema'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

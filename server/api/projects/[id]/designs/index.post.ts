@@ -1,5 +1,5 @@
-import { designCreateSchema } from '../../../../../shared/types/design'
-import { idParamSchema } from '../../../../../shared/types/project'
+import { designCreateSchema } from '#shared/types/design'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,5 +1,5 @@
 // The project's shortlist (chosen candidate first) and its history of changes.
-import { idParamSchema } from '../../../../../shared/types/project'
+import { idParamSchema } from '#shared/types/project'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

@@ -1,6 +1,6 @@
 // Any member bookmarks a run cell into the shortlist with a note.
-import { idParamSchema } from '../../../../../shared/types/project'
-import { shortlistAddSchema } from '../../../../../shared/types/shortlist'
+import { idParamSchema } from '#shared/types/project'
+import { shortlistAddSchema } from '#shared/types/shortlist'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

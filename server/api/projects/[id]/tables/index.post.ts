@@ -1,7 +1,7 @@
 // Upload of a measurement table as the raw CSV body: POST /api/projects/:id/tables?kind=…&name=…&fileName=…
 // [&fit=isotonic&smoothPoints=5 | &fit=asphere&asphereTerms=0] for a stylus trace to be fitted (raw rows kept).
-import { idParamSchema } from '../../../../../shared/types/project'
-import { dataTableUploadQuerySchema } from '../../../../../shared/types/data-table'
+import { idParamSchema } from '#shared/types/project'
+import { dataTableUploadQuerySchema } from '#shared/types/data-table'
 
 export default defineApiHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, zodValidator(idParamSchema))

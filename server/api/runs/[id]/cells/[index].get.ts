@@ -1,5 +1,5 @@
 // One cell's full result: every figure with its σ, the 1° profile and the θ–φ map, expanded from the stored counts.
-import { cellParamSchema } from '../../../../../shared/types/run'
+import { cellParamSchema } from '#shared/types/run'
 
 export default defineApiHandler(async (event) => {
   const { id, index } = await getValidatedRouterParams(event, zodValidator(cellParamSchema))

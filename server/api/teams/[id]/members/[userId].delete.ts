@@ -1,5 +1,5 @@
 // A lead removes a member from the team; the last lead cannot be removed (409).
-import { memberParamSchema } from '../../../../../shared/types/team'
+import { memberParamSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const { id, userId } = await getValidatedRouterParams(event, zodValidator(memberParamSchema))

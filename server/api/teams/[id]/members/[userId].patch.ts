@@ -1,5 +1,5 @@
 // A lead changes a member's role; the last lead cannot be demoted (409).
-import { memberParamSchema, memberRoleSchema } from '../../../../../shared/types/team'
+import { memberParamSchema, memberRoleSchema } from '#shared/types/team'
 
 export default defineApiHandler(async (event) => {
   const { id, userId } = await getValidatedRouterParams(event, zodValidator(memberParamSchema))

@@ -1,6 +1,6 @@
 // One cell's result as a file: ?format=csv (long format) or json (everything, with the scenario).
-import { cellParamSchema } from '../../../../../../shared/types/run'
-import { resultExportQuerySchema } from '../../../../../../shared/types/export'
+import { cellParamSchema } from '#shared/types/run'
+import { resultExportQuerySchema } from '#shared/types/export'
 
 export default defineApiHandler(async (event) => {
   const { id, index } = await getValidatedRouterParams(event, zodValidator(cellParamSchema))
@@ -13,7 +13,8 @@ export default defineApiHandler(async (event) => {
   if (format === 'json') {
     setResponseHeader(event, 'content-disposition', `attachment; filename="${name}.json"`)
     const cell = { ...found.cell, scenario: tracedScenario(found.cell.scenario, found.result.rays, Number(found.cell.seed)) }
-    return { run: { id: run.id, name: run.name, designName: run.designName, designVersion: run.designVersion, engineVersion: run.engineVersion }, cell, result: found.result }
+    return { run: { id: run.id, name: run.name, designName: run.designName, designVersion: run.designVersion, engineVersion: run.engineVersion }, cell,
+      result: found.result }
   }
   setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
   setResponseHeader(event, 'content-disposition', `attachment; filename="${name}.csv"`)

@@ -1,9 +1,9 @@
 // The cell's lens surface for mastering: ?format=stl (binary STL patch of lensesX × lensesY lenses at
 // samplesPerPitch grid steps per pitch, µm) or sag (radial sag table CSV of one cap, `points` rows).
 import { eq, and } from 'drizzle-orm'
-import { runCells } from '../../../../../db/schema'
-import { cellParamSchema } from '../../../../../../shared/types/run'
-import { surfaceExportQuerySchema } from '../../../../../../shared/types/export'
+import { runCells } from '~~/server/db/schema'
+import { cellParamSchema } from '#shared/types/run'
+import { surfaceExportQuerySchema } from '#shared/types/export'
 
 export default defineApiHandler(async (event) => {
   const { id, index } = await getValidatedRouterParams(event, zodValidator(cellParamSchema))
