@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import { dbFromPool } from '../../server/utils/db'
 import { DEMO_USERS, loadDemoData } from '../../server/utils/demo'
 import { ApiClient } from './client'
+import { tracedPerRay } from '../../shared/types/ray-limits'
 
 const pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 2 })
 afterAll(async () => { await pool.end() })
@@ -20,7 +21,7 @@ const WHEN = /\d{1,2} [A-Z][a-z]{2} \d\d:\d\d UTC$/
 
 describe('run and sweep names', () => {
   let projectId = ''
-  let lens: { id: string; name: string }
+  let lens: { id: string; name: string; scenario: Parameters<typeof tracedPerRay>[0] }
   const started: string[] = []
   beforeAll(async () => {
     projectId = (await loadDemoData(dbFromPool(pool))).projectId
@@ -41,8 +42,9 @@ describe('run and sweep names', () => {
     expect(run.body.run.name.startsWith(`${lens.name}, `)).toBe(true)
     expect(run.body.run.name).toMatch(WHEN)
     const detail = (await designer.get(`/api/runs/${run.body.run.id}`)).body
-    // a lens design traces a planar companion beside every ray: the team is charged 40 000, the user asked for 20 000
-    expect(detail.run.raysPlanned).toBe(40_000)
+    // the team is charged traced rays (a traced planar companion doubles them: shared/types/ray-limits.ts), the
+    // progress counts the 20 000 the user asked for
+    expect(detail.run.raysPlanned).toBe(20_000 * tracedPerRay(lens.scenario))
     expect(detail.progress.raysPlanned).toBe(20_000)
     expect(detail.progress.raysDone).toBe(0)
     const sweep = await designer.post('/api/sweeps', {
