@@ -99,7 +99,7 @@ export type PresetScenario = Omit<Scenario, 'reflector' | 'emitter'> & {
   reflector?: Scenario['reflector']
 }
 export function presetScenario(p: DesignPreset): PresetScenario {
-  const s: PresetScenario = structuredClone(scenarioSchema.parse(p.scenario))
+  const s = structuredClone(scenarioSchema.parse(p.scenario)) as PresetScenario
   if (p.stack) applyStack(s, stackFromInput(p.stack))
   return s
 }

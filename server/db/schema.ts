@@ -5,6 +5,7 @@ import { bigint, boolean, check, customType, doublePrecision, index, integer, js
 import type { ProjectLimits } from '../../shared/types/project'
 import type { CellSummary } from '../../shared/types/figures'
 import type { Scenario } from '../../shared/types/scenario'
+import type { ScenarioWithRefs } from '../../shared/types/table-refs'
 import type { SweepAxis } from '../../shared/types/sweep'
 
 export const roleEnum = pgEnum('team_role', ['lead', 'designer', 'viewer'])
@@ -60,7 +61,8 @@ export const designs = pgTable('designs', {
   version: integer('version').notNull().default(1),
   authorId: text('author_id').references(() => users.id, { onDelete: 'set null' }),
   // Validated by shared/types/scenario.ts (scenarioSchema) before it is written.
-  scenario: jsonb('scenario').$type<Scenario>().notNull(),
+  // a design keeps its table references ({ tableId }); runs store the scenario with them resolved
+  scenario: jsonb('scenario').$type<ScenarioWithRefs>().notNull(),
   createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
   updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
 }, (t) => [

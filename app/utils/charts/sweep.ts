@@ -64,9 +64,15 @@ const axisValues = (rows: SweepHeatCell[], i: number) => [...new Set(rows.map((r
  * alert red with ⚠, cells still tracing grey with …, infeasible cells crossed out. Items carry their cell index.
  */
 export function sweepHeatOption(rows: SweepHeatCell[], opts: {
-  axisLabels: string[], twoAxes: boolean, fig: FigureDisplay, unitMark: string, bestCellIndex: number | null
+  axisLabels: string[], twoAxes: boolean, fig: FigureDisplay, unitMark: string, bestCellIndex: number | null,
+  /** A coordinate as shown on axis `axis` (default 4 significant figures). */
+  coord?: (axis: number, v: number) => string,
+  /** The colour ramp, lightest to darkest = best (reversed by the page for a figure where lower is better). */
+  ramp?: readonly string[],
 }) {
   const { axisLabels, twoAxes, fig, unitMark, bestCellIndex } = opts
+  const coord = opts.coord ?? ((_axis: number, v: number) => num(v))
+  const ramp = opts.ramp ?? HEAT_RAMP
   const xs = axisValues(rows, 0), ys = twoAxes ? axisValues(rows, 1) : [0]
   const done = rows.filter((r) => r.value !== null && r.status !== 'infeasible')
   const vals = done.map((r) => r.value! * fig.scale)
@@ -78,22 +84,22 @@ export function sweepHeatOption(rows: SweepHeatCell[], opts: {
     tooltip: {
       formatter: (p: ChartPoint) => {
         const r = rows.find((x) => x.cellIndex === cellIndexOf(p))!
-        const where = r.coordinates.map((c, i) => `${axisLabels[i]}: ${num(c)}`).join('<br>')
+        const where = r.coordinates.map((c, i) => `${axisLabels[i]}: ${coord(i, c)}`).join('<br>')
         const over = r.breaches.length ? `<br><span style="color:${PALETTE.alert[500]}">breaks the project's limit: ${r.breaches.join('; ')}</span>` : ''
         const what = r.status === 'infeasible' ? `infeasible: ${r.reason}` : r.value === null ? r.status : `${fig.fmt(r.value, r.stdErr)}${r.status !== 'done' ? ` (${r.status})` : ''}`
         return `Cell ${r.cellIndex}<br>${where}<br><strong>${what}</strong>${over}`
       },
     },
-    xAxis: { type: 'category', data: xs.map((v) => num(v)), name: axisLabels[0], nameLocation: 'middle', nameGap: 32, splitArea: { show: true } },
-    yAxis: { type: 'category', data: ys.map((v) => num(v)), name: axisLabels[1] ?? '', nameLocation: 'middle', nameGap: 56, splitArea: { show: true } },
-    visualMap: { min: lo, max: hi === lo ? lo + 1e-9 : hi, calculable: true, right: 0, top: 'center', seriesIndex: 0, text: [unitMark, ''], inRange: { color: [...HEAT_RAMP] }, formatter: (v: number) => v.toPrecision(3) },
+    xAxis: { type: 'category', data: xs.map((v) => coord(0, v)), name: axisLabels[0], nameLocation: 'middle', nameGap: 32, splitArea: { show: true } },
+    yAxis: { type: 'category', data: ys.map((v) => coord(1, v)), name: axisLabels[1] ?? '', nameLocation: 'middle', nameGap: 56, splitArea: { show: true } },
+    visualMap: { min: lo, max: hi === lo ? lo + 1e-9 : hi, calculable: true, right: 0, top: 'center', seriesIndex: 0, text: [unitMark, ''], inRange: { color: [...ramp] }, formatter: (v: number) => v.toPrecision(3) },
     series: [
       {
         type: 'heatmap',
         data: done.map((r) => {
           const v = r.value! * fig.scale
           const isBest = r.cellIndex === bestCellIndex
-          const ink = labelColour(hi === lo ? 0 : (v - lo) / (hi - lo))
+          const ink = labelColour(hi === lo ? 0 : (v - lo) / (hi - lo), ramp)
           return {
             value: [...cellAt(r), v], cellIndex: r.cellIndex,
             label: { color: ink, textBorderColor: ink === PALETTE.paper.raised ? PALETTE.lagoon[800] : PALETTE.paper.raised, textBorderWidth: 2, fontWeight: isBest ? 'bold' : 'normal' },
