@@ -88,7 +88,10 @@ export function colourCsv(device: ColourBands, planar: ColourBands | null): stri
   for (const [name, c] of [['device', device], ['flat', planar]] as const) {
     if (!c) continue
     for (const r of colourTrajectory(c, 90)) {
-      rows.push([name, r.angleDeg, r.x, r.xStdErr, r.y, r.yStdErr, r.uPrime, r.uPrimeStdErr, r.vPrime, r.vPrimeStdErr, r.deltaUv, r.deltaUvStdErr, r.photopicRelative, r.photopicRelativeStdErr])
+      rows.push([
+        name, r.angleDeg, r.x, r.xStdErr, r.y, r.yStdErr, r.uPrime, r.uPrimeStdErr, r.vPrime, r.vPrimeStdErr, r.deltaUv, r.deltaUvStdErr,
+        r.photopicRelative, r.photopicRelativeStdErr,
+      ])
     }
   }
   return toCsv(COLOUR_CSV_HEADER, rows)

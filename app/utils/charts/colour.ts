@@ -79,8 +79,10 @@ export function chromaticityCsv(cs: Colours) {
   const f = cs.flat
   return {
     header: ['theta_deg', 'x', 'y', 'u_prime', 'v_prime', ...(f ? ['flat_x', 'flat_y', 'flat_u_prime', 'flat_v_prime'] : [])],
-    rows: cs.device.bandCentersDeg.map((deg, i) => [deg, cs.device.x[i] ?? null, cs.device.y[i] ?? null, cs.device.uPrime[i] ?? null, cs.device.vPrime[i] ?? null,
-      ...(f ? [f.x[i] ?? null, f.y[i] ?? null, f.uPrime[i] ?? null, f.vPrime[i] ?? null] : [])]),
+    rows: cs.device.bandCentersDeg.map((deg, i) => [
+      deg, cs.device.x[i] ?? null, cs.device.y[i] ?? null, cs.device.uPrime[i] ?? null, cs.device.vPrime[i] ?? null,
+      ...(f ? [f.x[i] ?? null, f.y[i] ?? null, f.uPrime[i] ?? null, f.vPrime[i] ?? null] : []),
+    ]),
   }
 }
 
@@ -120,7 +122,9 @@ export function deltaUvCsv(cs: Colours) {
   const d = cs.device, f = cs.flat
   return {
     header: ['theta_deg', 'delta_uv', 'delta_uv_stderr', ...(f ? ['flat_delta_uv', 'flat_delta_uv_stderr'] : [])],
-    rows: d.bandCentersDeg.map((deg, i) => [deg, d.deltaUv[i] ?? null, d.deltaUvStdErr[i] ?? null, ...(f ? [f.deltaUv[i] ?? null, f.deltaUvStdErr[i] ?? null] : [])]),
+    rows: d.bandCentersDeg.map((deg, i) => [
+      deg, d.deltaUv[i] ?? null, d.deltaUvStdErr[i] ?? null, ...(f ? [f.deltaUv[i] ?? null, f.deltaUvStdErr[i] ?? null] : []),
+    ]),
   }
 }
 
