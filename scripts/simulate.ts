@@ -161,7 +161,8 @@ async function main() {
       : undefined,
   })
   if (args.directions) {
-    result.luminance.directions = reciprocalDirections(packScene(sc), args.directions.map((thetaDeg) => ({ thetaDeg, phiDeg: 0 })), Math.min(rays, 100_000), seed)
+    result.luminance.directions = reciprocalDirections(packScene(sc), args.directions.map((thetaDeg) => ({ thetaDeg, phiDeg: 0 })),
+      Math.min(rays, 100_000), seed)
   }
   const seconds = (performance.now() - t0) / 1000
   if (args.json) process.stdout.write(`${JSON.stringify({ ...result, threads, seconds })}\n`)

@@ -65,7 +65,7 @@ export async function traceOnPool(sc: Scenario, opts: PoolRunOptions): Promise<{
   const scenes = prepareRun(sc, { companion: opts.companion })
   const total: RunTallies = { device: createTally(), planar: scenes.planar ? createTally() : null }
   let done = 0
-  let flat: ReturnType<typeof companionFor> = null
+  let flat: ReturnType<typeof companionFor>
   try {
     const tasks = chunks.map(async ([firstRay, rayCount]) => {
       const buf = (await pool.run({ scenes, firstRay, rayCount, seed: opts.seed })) as ArrayBuffer

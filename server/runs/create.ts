@@ -67,7 +67,8 @@ export async function createRun(input: CreateRunInput): Promise<Run> {
     const cost = plan.tracedRaysReserved
     if (outstanding + cost > settings.teamRayLimit) {
       const tracedPerCellRay = plan.feasible.reduce((n, c) => n + tracedPerRay(c.scenario), 0)
-      throw new RunRequestError(rayLimitMessage(plan.raysPerCell ?? plan.rayCap!, plan.feasible.length, tracedPerCellRay, outstanding, settings.teamRayLimit), 429)
+      throw new RunRequestError(
+        rayLimitMessage(plan.raysPerCell ?? plan.rayCap!, plan.feasible.length, tracedPerCellRay, outstanding, settings.teamRayLimit), 429)
     }
     const [run] = await tx.insert(runs).values({
       projectId: input.projectId,

@@ -335,7 +335,9 @@ function lambertianResponse(o: Optics, n: Nodes, ch: Chain): Float64Array {
   const F = new Float64Array(O_LENGTH)
   let G = 0
   for (let j = 0; j < n.count; j++) {
-    for (let c = 0; c < C; c++) G += nodeSums(1, o.R, o.d, trap, ch.R1[j * C + c]!, ch.R2[j * C + c]!, ch.A[j]!, ch.tir2[j] === 1, 0, n.lamb[j]!, n.bin[j]!, F, w)
+    for (let c = 0; c < C; c++) {
+      G += nodeSums(1, o.R, o.d, trap, ch.R1[j * C + c]!, ch.R2[j * C + c]!, ch.A[j]!, ch.tir2[j] === 1, 0, n.lamb[j]!, n.bin[j]!, F, w)
+    }
   }
   G += lumpSums(1, o.R, o.d, 0, n.wgLamb, F, 1)
   for (let i = 0; i < O_LENGTH; i++) F[i] = F[i]! / (1 - G)
@@ -489,9 +491,15 @@ export function flatOutcomes(scene: PackedScene): Float64Array {
   const K = SPECTRAL_GRID
   let constant = true
   for (let j = 1; j <= K && constant; j++) {
-    constant = scene[at + spectralSlot(j, SP_NE)] === scene[at + spectralSlot(0, SP_NE)] && scene[at + spectralSlot(j, SP_NS)] === scene[at + spectralSlot(0, SP_NS)] && scene[at + spectralSlot(j, SP_AS)] === scene[at + spectralSlot(0, SP_AS)]
+    constant = scene[at + spectralSlot(j, SP_NE)] === scene[at + spectralSlot(0, SP_NE)]
+      && scene[at + spectralSlot(j, SP_NS)] === scene[at + spectralSlot(0, SP_NS)]
+      && scene[at + spectralSlot(j, SP_AS)] === scene[at + spectralSlot(0, SP_AS)]
   }
-  if (constant) { flatAt({ ...base, nE: scene[at + spectralSlot(0, SP_NE)]!, nS: scene[at + spectralSlot(0, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(0, SP_AS)]! }, l, out, 1); return out }
+  if (constant) {
+    flatAt({ ...base, nE: scene[at + spectralSlot(0, SP_NE)]!, nS: scene[at + spectralSlot(0, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(0, SP_AS)]! },
+      l, out, 1)
+    return out
+  }
   // The outcome is a smooth function of wavelength (through n_e, n_s, α): evaluated every SPECTRAL_STRIDE grid
   // nodes and carried to each cell's middle by 4-point Lagrange interpolation, so Σ_cells w·f(mid) = Σ_nodes c·f(node).
   const g = SPECTRAL_STRIDE, E = K / g + 1
@@ -510,7 +518,8 @@ export function flatOutcomes(scene: PackedScene): Float64Array {
   for (let e = 0; e < E; e++) {
     if (coef[e] === 0) continue
     const j = e * g
-    flatAt({ ...base, nE: scene[at + spectralSlot(j, SP_NE)]!, nS: scene[at + spectralSlot(j, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(j, SP_AS)]! }, l, out, coef[e]!)
+    flatAt({ ...base, nE: scene[at + spectralSlot(j, SP_NE)]!, nS: scene[at + spectralSlot(j, SP_NS)]!, alphaPerUm: scene[at + spectralSlot(j, SP_AS)]! },
+      l, out, coef[e]!)
   }
   return out
 }
@@ -528,7 +537,9 @@ export function flatCompanionOfScene(scene: PackedScene): FlatCompanion {
     luminanceRelative.push(m / (Math.sin(tb) ** 2 - Math.sin(ta) ** 2))
   }
   const zeros = () => new Array<number>(THETA_BINS).fill(0)
-  const losses: Losses = { reflector: o[O_REFLECTOR]!, substrate: o[O_SUBSTRATE]!, waveguided: o[O_WAVEGUIDED]!, trapped: o[O_TRAPPED]!, unresolved: o[O_UNRESOLVED]! }
+  const losses: Losses = {
+    reflector: o[O_REFLECTOR]!, substrate: o[O_SUBSTRATE]!, waveguided: o[O_WAVEGUIDED]!, trapped: o[O_TRAPPED]!, unresolved: o[O_UNRESOLVED]!,
+  }
   return {
     method: 'quadrature', extraction, extractionStdErr: 0, losses,
     perSteradian, perSteradianStdErr: zeros(), luminanceRelative, luminanceRelativeStdErr: zeros(),

@@ -37,7 +37,10 @@ export interface Ray {
 }
 
 export function createRay(): Ray {
-  return { x: 0, y: 0, z: 0, ox: 0, oy: 0, dx: 0, dy: 0, dz: 1, medium: MEDIUM_EMITTER, onCap: false, excludeSelf: false, events: 0, end: -1, bounces: 0, pol: new Float64Array(6), wavelengthNm: 550, nE: 1, nS: 1, nL: 1, alphaS: 0, alphaL: 0, tfNode: 0, rng: createRngState() }
+  return {
+    x: 0, y: 0, z: 0, ox: 0, oy: 0, dx: 0, dy: 0, dz: 1, medium: MEDIUM_EMITTER, onCap: false, excludeSelf: false, events: 0, end: -1, bounces: 0,
+    pol: new Float64Array(6), wavelengthNm: 550, nE: 1, nS: 1, nL: 1, alphaS: 0, alphaL: 0, tfNode: 0, rng: createRngState(),
+  }
 }
 
 /** Puts the ray at the start of its life: ray `rayIndex` of stream `streamId` of `seed`, nowhere yet. */

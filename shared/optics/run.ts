@@ -14,7 +14,8 @@ import { packScene, type PackedScene, S_HAS_LENS, S_SPECTRAL_OFFSET } from './sc
 import { traceRange } from './tracer'
 import { colourOf } from './colour'
 import {
-  createTally, mergeTally, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
+  createTally, mergeTally, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
+  T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
 

@@ -203,9 +203,9 @@ export function emitterStep(ray: Ray, st: Stack): number {
 
 /**
  * Substrate, face to face (z is 0 or t on entry). Beer–Lambert on the way. Bottom face: back into the emitter
- * layer (TIR or Fresnel: up again), or with a thin-film source the stack (stackStep). Top face: wrap to the nearest lattice site; inside its base disc, into the lens
- * material (an interface only when the indices differ); else the flat land into air (with no lens array that is
- * the exit; in the planar device with a specular reflector a TIR ray can never escape: trapped).
+ * layer (TIR or Fresnel: up again), or with a thin-film source the stack (stackStep). Top face: wrap to the nearest
+ * lattice site; inside its base disc, into the lens material (an interface only when the indices differ); else the
+ * flat land into air (with no lens array that is the exit; in the planar device with a specular reflector a TIR ray can never escape: trapped).
  */
 export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   const tUm = st.thicknessUm

@@ -18,7 +18,9 @@ export const DEFAULT_TEAM_RAY_LIMIT = 1_000_000_000
  * spectrum (device + traced planar companion), else 1 (quadrature companion, or a flat stack). The engine's rule is the same
  * (shared/optics/run.ts tracesCompanion with the default quadrature companion).
  */
-export function tracedPerRay(scenario: { lensArray?: unknown, emitter?: { source?: { shape?: string }, spectrum?: unknown, thinFilm?: unknown } } | null | undefined): 1 | 2 {
+export function tracedPerRay(
+  scenario: { lensArray?: unknown, emitter?: { source?: { shape?: string }, spectrum?: unknown, thinFilm?: unknown } } | null | undefined,
+): 1 | 2 {
   if (!scenario?.lensArray) return 1
   const e = scenario.emitter
   // a sheet emitter with a spectrum traces its companion too: the flat device's colour comes from its counts

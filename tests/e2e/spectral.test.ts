@@ -137,7 +137,10 @@ describe('spectrum and materials in the editor', () => {
       const res = await route.fetch()
       const body = await res.json()
       if (body.result && !body.result.colour) {
-        Object.assign(body.result, { colour: fixture.colour, planarColour: fixture.planarColour, photopicOnAxisGain: fixture.photopicOnAxisGain, photopicOnAxisGainStdErr: fixture.photopicOnAxisGainStdErr })
+        Object.assign(body.result, {
+          colour: fixture.colour, planarColour: fixture.planarColour,
+          photopicOnAxisGain: fixture.photopicOnAxisGain, photopicOnAxisGainStdErr: fixture.photopicOnAxisGainStdErr,
+        })
       }
       await route.fulfill({ response: res, json: body })
     })

@@ -78,7 +78,8 @@ describe('colour of the traced light', () => {
   it('spectral with constant indices reproduces the monochromatic luminance within σ (hex hemispheres, photopic = radiometric) — seeds 903, 904', () => {
     const lens: ScenarioInput = { ...flat, emitter: { index: 1.7, angularProfile: 'isotropic' }, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } }
     const mono = traceScenario(scenarioSchema.parse(lens), { rays: 600_000, seed: 903 })
-    const spec = traceScenario(scenarioSchema.parse({ ...lens, emitter: { ...lens.emitter, spectrum: { peakNm: 560, fwhmNm: 100 } } }), { rays: 600_000, seed: 904 })
+    const spec = traceScenario(scenarioSchema.parse({ ...lens, emitter: { ...lens.emitter, spectrum: { peakNm: 560, fwhmNm: 100 } } }),
+      { rays: 600_000, seed: 904 })
     expect(mono.colour).toBeUndefined()
     const c = spec.colour!
     expectWithinSigma('extraction', spec.extraction, mono.extraction, Math.hypot(spec.extractionStdErr, mono.extractionStdErr))
@@ -87,7 +88,10 @@ describe('colour of the traced light', () => {
     const w1 = (k: number) => Math.sin(((k + 1) * Math.PI) / 180) ** 2 - Math.sin((k * Math.PI) / 180) ** 2
     const axisLamb = Math.sin((5 * Math.PI) / 180) ** 2
     let pa = 0, pae2 = 0
-    for (let k = 0; k < 5; k++) { pa += (mono.planar.luminanceRelative[k]! * w1(k)) / axisLamb; pae2 += ((mono.planar.luminanceRelativeStdErr[k]! * w1(k)) / axisLamb) ** 2 }
+    for (let k = 0; k < 5; k++) {
+      pa += (mono.planar.luminanceRelative[k]! * w1(k)) / axisLamb
+      pae2 += ((mono.planar.luminanceRelativeStdErr[k]! * w1(k)) / axisLamb) ** 2
+    }
     const monoGain = mono.luminance.onAxisRelative / pa
     const monoGainErr = monoGain * Math.hypot(mono.luminance.onAxisRelativeStdErr / mono.luminance.onAxisRelative, Math.sqrt(pae2) / pa)
     expectWithinSigma('photopic on-axis gain vs monochromatic on-axis gain', spec.photopicOnAxisGain!, monoGain, Math.hypot(spec.photopicOnAxisGainStdErr!, monoGainErr))

@@ -133,7 +133,10 @@ describe('flat quadrature vs the traced companion (4σ; I(θ) by χ²)', () => {
     ['polarised, diffuse 30 %, table profile', 2107, flat({ emitter: { index: 1.8, angularProfile: table }, reflector: { reflectance: 0.9, diffuseFraction: 0.3 }, trace: { fresnel: 'polarized' } })],
     ['spectral: Gaussian 530/60 nm, Cauchy emitter, N-BK7 substrate (Sellmeier, maker’s datasheet), polarised', 2108, flat({
       emitter: { index: { cauchy: { A: 1.68, B: 0.012 } }, spectrum: { peakNm: 530, fwhmNm: 60 } },
-      substrate: { index: { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945], C: [0.00600069867, 0.0200179144, 103.560653] } }, thicknessUm: 100, absorptionPerMm: 0.5 },
+      substrate: {
+        index: { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945], C: [0.00600069867, 0.0200179144, 103.560653] } },
+        thicknessUm: 100, absorptionPerMm: 0.5,
+      },
       trace: { fresnel: 'polarized' },
     })],
     ['spectral: two-band table spectrum, n,k table substrate (absorption 4πk/λ)', 2109, flat({

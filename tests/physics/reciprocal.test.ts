@@ -31,7 +31,10 @@ describe('reciprocal vs the exact flat device (quadrature), 4σ', () => {
     ['table profile with down-going emission, 1.5 | 1.7', 2214, { emitter: { index: 1.5, angularProfile: { table: [[0, 1], [60, 0.5], [120, 0.8], [180, 0.2]] } }, substrate: { index: 1.7, thicknessUm: 100 } }],
     ['spectral: Gaussian 530/60 nm, Cauchy emitter, N-BK7 substrate (Sellmeier, maker’s datasheet), polarised', 2215, {
       emitter: { index: { cauchy: { A: 1.68, B: 0.012 } }, spectrum: { peakNm: 530, fwhmNm: 60 } },
-      substrate: { index: { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945], C: [0.00600069867, 0.0200179144, 103.560653] } }, thicknessUm: 100, absorptionPerMm: 0.5 },
+      substrate: {
+        index: { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945], C: [0.00600069867, 0.0200179144, 103.560653] } },
+        thicknessUm: 100, absorptionPerMm: 0.5,
+      },
       trace: { fresnel: 'polarized' },
     }],
   ] as const)('%s — seed %s', (_label, seed, over) => {

@@ -19,7 +19,9 @@ const oled = (over: Partial<{ tf: ThinFilmInput; absorptionPerMm: number; fresne
   lensArray: over.lens ?? null,
   trace: { fresnel: over.fresnel ?? 'polarized' },
 })
-const withEtl = (nm: number): ThinFilmInput => ({ ...REFERENCE_GREEN_STACK, layers: REFERENCE_GREEN_STACK.layers.map((l, i) => (i === 3 ? { ...l, thicknessNm: nm } : l)) })
+const withEtl = (nm: number): ThinFilmInput => ({
+  ...REFERENCE_GREEN_STACK, layers: REFERENCE_GREEN_STACK.layers.map((l, i) => (i === 3 ? { ...l, thicknessNm: nm } : l)),
+})
 const record: Record<string, unknown> = {}
 const f4 = (x: number) => x.toFixed(4)
 
@@ -88,7 +90,10 @@ describe('enhancement of a close-packed hemisphere film: the OLED stack beside t
     }), { rays: 200_000, seed: 32 })
     // Literature: films on real panels ≈ 1.5–1.7× (Eom, Wrzesniewski & Xue, J. Photon. Energy 1, 011002 (2011):
     // +70 ± 7 %); ideal-array simulations 1.8–2.2×. Recorded, not tuned to.
-    record.enhancement = { thinFilm: [tf.enhancement, tf.enhancementStdErr], sheet: [sheet.enhancement, sheet.enhancementStdErr], thinFilmExtraction: tf.extraction, flat: tf.planar.extraction }
+    record.enhancement = {
+      thinFilm: [tf.enhancement, tf.enhancementStdErr], sheet: [sheet.enhancement, sheet.enhancementStdErr],
+      thinFilmExtraction: tf.extraction, flat: tf.planar.extraction,
+    }
     console.log(`hemisphere film: OLED stack ${tf.enhancement.toFixed(3)} ± ${tf.enhancementStdErr.toFixed(3)}× (η_air ${f4(tf.planar.extraction)} → ${f4(tf.extraction)}); sheet model (n 1.75, R 0.8) ${sheet.enhancement.toFixed(3)} ± ${sheet.enhancementStdErr.toFixed(3)}×; measured on panels 1.5–1.7× (Eom et al. 2011: 1.70 ± 0.07)`)
     expect(tf.enhancement).toBeGreaterThan(1 + K4 * tf.enhancementStdErr)
     expect(sheet.enhancement - tf.enhancement).toBeGreaterThan(K4 * Math.hypot(sheet.enhancementStdErr, tf.enhancementStdErr))
@@ -98,7 +103,8 @@ describe('enhancement of a close-packed hemisphere film: the OLED stack beside t
 describe('dipole orientation and the cavity (reference green stack)', () => {
   it('horizontal-only dipoles outcouple more than isotropic ones, flat and with the film (Furno et al. 2012; 100 000 rays, seeds 41/42)', () => {
     const iso = traceScenario(oled({ lens: hemispheres, thicknessUm: 100 }), { rays: 100_000, seed: 41 })
-    const hor = traceScenario(oled({ lens: hemispheres, thicknessUm: 100, tf: { ...REFERENCE_GREEN_STACK, horizontalDipoleFraction: 1 } }), { rays: 100_000, seed: 42 })
+    const hor = traceScenario(oled({ lens: hemispheres, thicknessUm: 100, tf: { ...REFERENCE_GREEN_STACK, horizontalDipoleFraction: 1 } }),
+      { rays: 100_000, seed: 42 })
     expect(hor.planar.extraction).toBeGreaterThan(iso.planar.extraction)
     expect(hor.extraction - iso.extraction).toBeGreaterThan(K4 * Math.hypot(hor.extractionStdErr, iso.extractionStdErr))
     console.log(`with the film: horizontal ${f4(hor.extraction)} ± ${f4(hor.extractionStdErr)}, isotropic ${f4(iso.extraction)} ± ${f4(iso.extractionStdErr)} of the dipole power`)

@@ -3,7 +3,9 @@ import { describe, expect, it } from 'vitest'
 import { indexCurve, indexCurveCsv, indexCurveOption } from '../../app/utils/charts/indexCurve'
 
 // N-BK7 Sellmeier coefficients (the glass maker's datasheet): n = 1.5168 at 587.6 nm.
-const BK7 = { sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] } }
+const BK7 = {
+  sellmeier: { B: [1.03961212, 0.231792344, 1.01046945] as [number, number, number], C: [0.00600069867, 0.0200179144, 103.560653] as [number, number, number] },
+}
 
 describe('n(λ) over the spectrum', () => {
   it('samples the spectrum span; BK7 through 587.6 nm reads 1.5168 (datasheet) and falls with λ (normal dispersion)', () => {

@@ -177,7 +177,10 @@ describe('figures', () => {
   })
 
   it('every figure reads a value with its σ from a summary that has it, and null from one that does not', () => {
-    const full = summary({ pixelOnAxisGain: 0.45, pixelOnAxisGainStdErr: 0.01, maxDeltaUvTo60: 0.004, maxDeltaUvTo60StdErr: 0.0005, photopicOnAxisGain: 1.1, photopicOnAxisGainStdErr: 0.03 })
+    const full = summary({
+      pixelOnAxisGain: 0.45, pixelOnAxisGainStdErr: 0.01, maxDeltaUvTo60: 0.004, maxDeltaUvTo60StdErr: 0.0005,
+      photopicOnAxisGain: 1.1, photopicOnAxisGainStdErr: 0.03,
+    })
     for (const k of FIGURE_KEYS) {
       const f = figureOf(full, k)
       expect(f, k).not.toBeNull()

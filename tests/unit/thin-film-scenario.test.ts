@@ -50,7 +50,9 @@ describe('emitter.thinFilm in the scenario', () => {
 describe('layer materials as n,k tables', () => {
   const flatTable = (n: number, k: number) => ({ table: [[380, n, k], [780, n, k]] as Array<[number, number, number]> })
   it('a constant table gives the same stack optics as the pair (F, glass share, flat η_air at 550 nm)', () => {
-    const tabled = { ...REF, layers: L.map((l) => ({ ...l, material: flatTable(l.material.n!, l.material.k ?? 0) })), cathode: { material: flatTable(0.96, 6.69) } }
+    const tabled = {
+      ...REF, layers: L.map((l) => ({ ...l, material: flatTable(l.material.n!, l.material.k ?? 0) })), cathode: { material: flatTable(0.96, 6.69) },
+    }
     const a = thinFilmSource(scenarioSchema.parse(base)).nodes[0]!.point
     const sc = scenarioSchema.parse(withStack(tabled))
     expect(sc.emitter.index).toBe(1.75)
@@ -59,7 +61,9 @@ describe('layer materials as n,k tables', () => {
     expect(b.airS + b.airP).toBe(a.airS + a.airP)
   })
   it('a dispersive table is read at each wavelength node (linear between rows)', () => {
-    const disp = { ...REF, layers: L.map((l, i) => (i === 0 ? { ...l, material: { table: [[400, 2.1, 0.02], [700, 1.8, 0.005]] as Array<[number, number, number]> } } : l)) }
+    const disp = {
+      ...REF, layers: L.map((l, i) => (i === 0 ? { ...l, material: { table: [[400, 2.1, 0.02], [700, 1.8, 0.005]] as Array<[number, number, number]> } } : l)),
+    }
     const sc = scenarioSchema.parse({ ...withStack(disp), emitter: { thinFilm: disp, spectrum: { peakNm: 550, fwhmNm: 30 } } })
     const nodes = thinFilmSource(sc).nodes
     const at550 = thinFilmAt({ ...REF, layers: L.map((l, i) => (i === 0 ? { ...l, material: { n: 1.95, k: 0.0125 } } : l)) } as never, 550, { glassIndex: 1.5 })
@@ -67,9 +71,13 @@ describe('layer materials as n,k tables', () => {
     expect(n550.point.purcell.mixed).toBeCloseTo(at550.purcell.mixed, 12)
   })
   it('refuses a table that does not cover the spectrum, an absorbing emitting layer, and n beside a table', () => {
-    const short = { ...REF, layers: L.map((l, i) => (i === 1 ? { ...l, material: { table: [[500, 1.75, 0], [600, 1.75, 0]] as Array<[number, number, number]> } } : l)) }
+    const short = {
+      ...REF, layers: L.map((l, i) => (i === 1 ? { ...l, material: { table: [[500, 1.75, 0], [600, 1.75, 0]] as Array<[number, number, number]> } } : l)),
+    }
     expect(errorsOf({ ...withStack(short), emitter: { thinFilm: short, spectrum: { peakNm: 520, fwhmNm: 40 } } })).toEqual(['Stack layer 2 n,k table: the n,k table covers 500–600 nm but the spectrum spans 400–640 nm'])
-    const lossyEml = { ...REF, layers: L.map((l, i) => (i === 2 ? { ...l, material: { table: [[380, 1.75, 0], [780, 1.75, 0.001]] as Array<[number, number, number]> } } : l)) }
+    const lossyEml = {
+      ...REF, layers: L.map((l, i) => (i === 2 ? { ...l, material: { table: [[380, 1.75, 0], [780, 1.75, 0.001]] as Array<[number, number, number]> } } : l)),
+    }
     expect(errorsOf(withStack(lossyEml))[0]).toMatch(/^Stack layer 3 n,k table: the emitting layer must be non-absorbing/)
     const both = { ...REF, cathode: { material: { n: 1, table: [[380, 0.9, 6], [780, 1.1, 7]] } } }
     expect(errorsOf(withStack(both))).toEqual(['Cathode n: give either n and k or an n,k table, not both'])

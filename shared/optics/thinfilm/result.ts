@@ -71,7 +71,9 @@ export function thinFilmExact(sc: Scenario): ThinFilmExact {
       purcellFactor: point.purcell.mixed,
       effectiveRadiativeEfficiency: point.effectiveRadiativeEfficiency,
       horizontalDipoleFraction: tf.horizontalDipoleFraction,
-      dissipation: { u, teHorizontal: [...K.teH], tmHorizontal: [...K.tmH], tmVertical: [...K.tmV], mixed: [...K.mixed], uAir: 1 / ne, uGlass: glassIndex / ne },
+      dissipation: {
+        u, teHorizontal: [...K.teH], tmHorizontal: [...K.tmH], tmVertical: [...K.tmV], mixed: [...K.mixed], uAir: 1 / ne, uGlass: glassIndex / ne,
+      },
       glassEmission: { thetaDeg, s: [...g.s], p: [...g.p] },
     },
   }
@@ -152,8 +154,14 @@ export function applyThinFilm(r: TraceResult, sc: Scenario, stackAbsorbedRays: n
     thinFilm: {
       ...X.block,
       modes: {
-        flat: { air: flat.extraction, glass: glass - flat.extraction, waveguided: X.waveguided, evanescent: X.evanescent, absorbed: X.absorbed, airStdErr: 0, glassStdErr: 0 },
-        film: { air: ext, glass: glass - ext, waveguided: X.waveguided, evanescent: X.evanescent, absorbed: X.absorbed, airStdErr: extErr, glassStdErr: extErr },
+        flat: {
+          air: flat.extraction, glass: glass - flat.extraction, waveguided: X.waveguided, evanescent: X.evanescent, absorbed: X.absorbed,
+          airStdErr: 0, glassStdErr: 0,
+        },
+        film: {
+          air: ext, glass: glass - ext, waveguided: X.waveguided, evanescent: X.evanescent, absorbed: X.absorbed,
+          airStdErr: extErr, glassStdErr: extErr,
+        },
       },
     },
   }

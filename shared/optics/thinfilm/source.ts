@@ -13,8 +13,9 @@
 //
 // Packed block (scene[S_THINFILM_OFFSET]): [W nodes, λ0 nm, Δλ nm, A emission cells, RA reflection cells,
 // μ_0..μ_A (μ_k = cos(k·90°/A)), then per node: p_s (probability that a ray is s-polarised), cdf_s[0..A],
-// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at μ_k = k/RA]]. Within a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a
-// 0.35° cell; the exact answer in flat.ts integrates the unbinned power, and the two agree to ~1e-5).
+// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at μ_k = k/RA]]. Within a cell of the angle grid μ is
+// drawn uniformly (the power per dμ is taken constant over a 0.35° cell; the exact answer in flat.ts integrates the
+// unbinned power, and the two agree to ~1e-5).
 import { DEFAULT_WAVELENGTH_NM, indexAt, spectrumRangeNm, type Scenario } from '../../types/scenario'
 import type { ThinFilm } from '../../types/thin-film'
 import { buildSpectralBlock, SP_CDF, SPECTRAL_GRID, spectralSlot } from '../spectral'

@@ -61,7 +61,9 @@ describe('colour tally', () => {
     expect(Array.from(ab.device)).toEqual(Array.from(ba.device))
     expect(Array.from(ab.planar!)).toEqual(Array.from(ba.planar!))
     expect(ab.device[T_RAYS]).toBe(3000)
-    for (const t of [ab, { device: ab.device, planar: null }, traceChunk(prepareRun(scenarioSchema.parse(base)), 0, 500, 1), { device: createTally(), planar: null }]) {
+    for (const t of [
+      ab, { device: ab.device, planar: null }, traceChunk(prepareRun(scenarioSchema.parse(base)), 0, 500, 1), { device: createTally(), planar: null },
+    ]) {
       const back = runTalliesFromBuffer(runTalliesToBuffer(t))
       expect(Array.from(back.device)).toEqual(Array.from(t.device))
       expect(back.planar === null).toBe(t.planar === null)

@@ -80,7 +80,9 @@ describe('inverse-CDF search through the guide table', () => {
       { wavelengthNm: 610 },
     ]
     for (const spectrum of spectra) {
-      const sc = scenarioSchema.parse({ emitter: { index: 1.7, spectrum }, reflector: { reflectance: 0.8 }, substrate: { index: 1.5, thicknessUm: 10 }, lensArray: null })
+      const sc = scenarioSchema.parse({
+        emitter: { index: 1.7, spectrum }, reflector: { reflectance: 0.8 }, substrate: { index: 1.5, thicknessUm: 10 }, lensArray: null,
+      })
       const block = buildSpectralBlock(sc, sc.substrate.index)
       const cell = new Float64Array(2)
       let mismatches = 0
