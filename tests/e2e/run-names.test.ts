@@ -26,8 +26,9 @@ describe('run names', () => {
   it('the start panel proposes a name from the axes and the time; the run page shows it and the user\'s rays', async () => {
     await signIn(page, baseUrl, designer.email, designer.password)
     pageErrors.length = 0
-    const designs = await page.evaluate(async (u) => (await (await fetch(u)).json()).designs, `/api/projects/${projectId}/designs`) as Array<{ id: string; name: string; scenario: { lensArray: unknown } }>
-    const lens = designs.find((d) => d.scenario.lensArray)!
+    const designs = await page.evaluate(async (u) => (await (await fetch(u)).json()).designs, `/api/projects/${projectId}/designs`) as Array<{ id: string; name: string; scenario: { lensArray: unknown, emitter: { thinFilm?: unknown, spectrum?: unknown } } }>
+    // a sheet-emitter lens design (other e2e files add stack and spectral designs to the same demo project)
+    const lens = designs.find((d) => d.scenario.lensArray && !d.scenario.emitter.thinFilm && !d.scenario.emitter.spectrum)!
     await page.goto(`${baseUrl}/designs/${lens.id}`)
     await page.getByTestId('mode-sweep').click()
     await expect.poll(async () => page.getByTestId('run-name-field').getAttribute('placeholder')).toMatch(/^Radius of curvature × Fill factor, \d{1,2} [A-Z][a-z]{2} \d\d:\d\d$/)
