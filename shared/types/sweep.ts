@@ -5,7 +5,7 @@
 // instead of failing the sweep. Lengths in µm, as everywhere in the scenario.
 import { z } from 'zod'
 import { runNameSchema } from './run'
-import { FIGURE_KEYS, type Figure } from './figures'
+import { FIGURE_KEYS } from './figures'
 import { MAX_RAYS_PER_CELL, MIN_RAYS_PER_CELL } from './ray-limits'
 import { diameterFromFillFactorUm, maxFillFactor, sagFromRadiusUm } from './geometry'
 import { scenarioErrorMessages, scenarioSchema, type Scenario } from './scenario'
@@ -81,7 +81,6 @@ export type SweepAxis = z.infer<typeof sweepAxisSchema>
 
 /** Figures a sweep can rank its cells by: the registry in ./figures (label, unit, direction, what a design needs). */
 export const figureSchema = z.enum(FIGURE_KEYS)
-export type { Figure }
 
 /**
  * How much tracing a run or a cell gets: a fixed ray count, or a target standard error on the extraction that
