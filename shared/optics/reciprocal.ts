@@ -16,8 +16,7 @@ import { emissionDensityOf } from './flat-quadrature'
 import { sampleCell } from './lattice'
 import { createRay, draw, MEDIUM_AIR, MEDIUM_EMITTER, MEDIUM_LENS, MEDIUM_SUBSTRATE, RAY_ENDED, resetRay, type Ray } from './ray'
 import type { PackedScene } from './scene'
-import { sampleWavelength, SP_AL, SP_AS, SP_NE, SP_NL, SP_NS, spectralValue } from './spectral'
-import { airStep, emitterStep, lensStep, stackOf, substrateStep, type Stack } from './steps'
+import { airStep, drawWavelength, emitterStep, lensStep, stackOf, substrateStep, type Stack } from './steps'
 import { T_UNRESOLVED } from './tally'
 
 /** Backward paths use streams from here on (0 device, 1 companion, 2 the preview): stream RECIPROCAL_STREAM + k for direction k. */
@@ -46,17 +45,7 @@ function startPath(ray: Ray, st: Stack, view: ViewDirection): void {
   // backward: travelling along −ω
   ray.dx = -Math.sin(th) * Math.cos(ph); ray.dy = -Math.sin(th) * Math.sin(ph); ray.dz = -Math.cos(th)
   if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz)
-  if (st.spectralAt > 0) {
-    const at = st.spectralAt
-    ray.wavelengthNm = sampleWavelength(st.scene, at, draw(ray), cell)
-    const j = cell[0]!, f = cell[1]!
-    ray.nE = spectralValue(st.scene, at, SP_NE, j, f); ray.nS = spectralValue(st.scene, at, SP_NS, j, f)
-    ray.nL = spectralValue(st.scene, at, SP_NL, j, f)
-    ray.alphaS = spectralValue(st.scene, at, SP_AS, j, f); ray.alphaL = spectralValue(st.scene, at, SP_AL, j, f)
-  } else {
-    ray.wavelengthNm = 550
-    ray.nE = st.nEmitter; ray.nS = st.nSubstrate; ray.nL = st.nLens; ray.alphaS = st.absorptionPerUm; ray.alphaL = st.lensAbsorptionPerUm
-  }
+  drawWavelength(ray, st, cell)
 }
 
 /**

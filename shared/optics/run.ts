@@ -8,8 +8,9 @@
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
 import { fresnelModeOf, scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
 import { applyThinFilm } from './thinfilm/result'
+import { tracedPerRay } from '../types/ray-limits'
 import type { Losses, TraceResult } from '../types/result'
-import { flatCompanion, flatQuadratureApplies, type FlatCompanion } from './flat-quadrature'
+import { flatCompanion, type FlatCompanion } from './flat-quadrature'
 import { packScene, type PackedScene, S_HAS_LENS, S_SPECTRAL_OFFSET } from './scene'
 import { traceRange } from './tracer'
 import { colourOf } from './colour'
@@ -41,10 +42,9 @@ export interface RunTallies {
 
 /** Whether a run of this scenario traces its planar companion (doubling its rays): lenses, and no quadrature for it. */
 export function tracesCompanion(sc: Scenario, companion: CompanionMethod = 'quadrature'): boolean {
-  // A sheet emitter with a spectrum traces its companion: the colour over angle of the flat device (planarColour,
-  // photopicOnAxisGain) comes from its counts, which the quadrature does not give.
-  const colourNeedsRays = sc.emitter.spectrum !== undefined && sc.emitter.thinFilm === undefined
-  return sc.lensArray !== null && (companion === 'traced' || !flatQuadratureApplies(sc) || colourNeedsRays)
+  // The default rule is the one the ray accounting charges (shared/types/ray-limits.ts): a finite pixel, or a sheet
+  // emitter with a spectrum (the flat device's colour comes from its counts), traces its companion.
+  return companion === 'traced' ? sc.lensArray !== null : tracedPerRay(sc) === 2
 }
 
 export function prepareRun(sc: Scenario, opts: { companion?: CompanionMethod } = {}): RunScenes {

@@ -120,6 +120,25 @@ function capNormalAt(ray: Ray, st: Stack, out: Float64Array): void {
  * Thin-film source: the position, the wavelength (with a spectrum), then the polarisation (s or p), μ and φ from the
  * stack's emission into the glass at the ray's wavelength node; the ray starts in the glass at z = 0 going up.
  */
+/**
+ * The ray's wavelength from the spectrum (one draw) and its indices and absorption there (spectral.ts), or the
+ * monochromatic 550 nm values without a spectrum; `cellOut` receives the spectral cell and the fraction within it.
+ * Shared by the forward launch and the reciprocal (backward) paths.
+ */
+export function drawWavelength(ray: Ray, st: Stack, cellOut: Float64Array): void {
+  if (st.spectralAt > 0) {
+    const at = st.spectralAt
+    ray.wavelengthNm = sampleWavelength(st.scene, at, draw(ray), cellOut)
+    const j = cellOut[0]!, f = cellOut[1]!
+    ray.nE = spectralValue(st.scene, at, SP_NE, j, f); ray.nS = spectralValue(st.scene, at, SP_NS, j, f)
+    ray.nL = spectralValue(st.scene, at, SP_NL, j, f)
+    ray.alphaS = spectralValue(st.scene, at, SP_AS, j, f); ray.alphaL = spectralValue(st.scene, at, SP_AL, j, f)
+  } else {
+    ray.wavelengthNm = 550
+    ray.nE = st.nEmitter; ray.nS = st.nSubstrate; ray.nL = st.nLens; ray.alphaS = st.absorptionPerUm; ray.alphaL = st.lensAbsorptionPerUm
+  }
+}
+
 export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   const u1 = draw(ray), u2 = draw(ray)
   if (st.source === SOURCE_EXTENDED) sampleCell(st.hexagonal, st.pitchUm, u1, u2, v3)
@@ -134,18 +153,7 @@ export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
     ray.dx = v3[0]!; ray.dy = v3[1]!; ray.dz = v3[2]!
     if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz) // unpolarised: a random linear state
   }
-  if (st.spectralAt > 0) {
-    // the ray's wavelength from the spectrum, and its indices there (spectral.ts)
-    const at = st.spectralAt
-    ray.wavelengthNm = sampleWavelength(st.scene, at, draw(ray), cell)
-    const j = cell[0]!, f = cell[1]!
-    ray.nE = spectralValue(st.scene, at, SP_NE, j, f); ray.nS = spectralValue(st.scene, at, SP_NS, j, f)
-    ray.nL = spectralValue(st.scene, at, SP_NL, j, f)
-    ray.alphaS = spectralValue(st.scene, at, SP_AS, j, f); ray.alphaL = spectralValue(st.scene, at, SP_AL, j, f)
-  } else {
-    ray.wavelengthNm = 550
-    ray.nE = st.nEmitter; ray.nS = st.nSubstrate; ray.nL = st.nLens; ray.alphaS = st.absorptionPerUm; ray.alphaL = st.lensAbsorptionPerUm
-  }
+  drawWavelength(ray, st, cell)
   if (tf) {
     // the stack's node nearest the middle of the ray's spectral cell (the cell the source tables weighed)
     ray.tfNode = st.spectralAt > 0 ? thinFilmNode(st.scene, st.thinFilmAt, st.scene[st.spectralAt]! + (cell[0]! + 0.5) * st.scene[st.spectralAt + 1]!) : 0
