@@ -11,13 +11,13 @@ import { applyThinFilm } from './thinfilm/result'
 import { tracedPerRay } from '../types/ray-limits'
 import type { Losses, TraceResult } from '../types/result'
 import { flatCompanion, type FlatCompanion } from './flat-quadrature'
-import { packScene, type PackedScene, S_HAS_LENS, S_SPECTRAL_OFFSET } from './scene'
+import { packScene, type PackedScene, S_HAS_LENS, S_PANEL_OFFSET, S_SPECTRAL_OFFSET } from './scene'
 import { traceRange } from './tracer'
 import { colourOf } from './colour'
 import {
   createTally, mergeTally, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
   T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
-  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
+  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, TALLY_LENGTHS, THETA_BINS, type Tally,
 } from './tally'
 
 export const CHUNK_RAYS = 1 << 16
@@ -96,11 +96,12 @@ export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, s
   eventBudget = Infinity): RunTallies {
   // a scene with a spectrum gets the colour block (tally.ts); otherwise the tally is as before
   const colour = run.device[S_SPECTRAL_OFFSET]! > 0
-  const device = createTally(colour)
+  const panel = run.device[S_PANEL_OFFSET]! > 0 // a finite panel's scenes get the panel block (edge channel, detector)
+  const device = createTally(colour, panel)
   traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE, eventBudget)
   let planar: Tally | null = null
   if (run.planar) {
-    planar = createTally(colour)
+    planar = createTally(colour, panel)
     traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR, eventBudget)
   }
   return { device, planar }
@@ -121,8 +122,8 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const rays = opts.rays ?? sc.trace.rays
   const seed = opts.seed ?? sc.trace.seed
   const run = prepareRun(sc, { companion: opts.companion })
-  const colour = run.device[S_SPECTRAL_OFFSET]! > 0
-  const total: RunTallies = { device: createTally(colour), planar: run.planar ? createTally(colour) : null }
+  const colour = run.device[S_SPECTRAL_OFFSET]! > 0, panel = run.device[S_PANEL_OFFSET]! > 0
+  const total: RunTallies = { device: createTally(colour, panel), planar: run.planar ? createTally(colour, panel) : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
   return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : companionFor(sc, total), sc)
 }
@@ -347,9 +348,9 @@ export function runTalliesToBuffer(t: RunTallies): ArrayBuffer {
 
 export function runTalliesFromBuffer(buf: ArrayBuffer | ArrayBufferLike): RunTallies {
   const all = new Float64Array(buf)
-  for (const L of [TALLY_LENGTH, SPECTRAL_TALLY_LENGTH]) {
+  for (const L of TALLY_LENGTHS) {
     if (all.length === L) return { device: all.subarray(0, L), planar: null }
     if (all.length === 2 * L) return { device: all.subarray(0, L), planar: all.subarray(L) }
   }
-  throw new Error(`run buffer has ${all.length} numbers, expected 1 or 2 × ${TALLY_LENGTH} (or × ${SPECTRAL_TALLY_LENGTH} with colour)`)
+  throw new Error(`run buffer has ${all.length} numbers, expected 1 or 2 × ${TALLY_LENGTH} (or × ${SPECTRAL_TALLY_LENGTH} with colour, × ${TALLY_LENGTHS[2]} or ${TALLY_LENGTHS[3]} for a finite panel)`)
 }
