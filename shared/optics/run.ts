@@ -6,18 +6,18 @@
 // the device alone, σE/E = σ1/η1. 'traced' keeps the traced companion as the cross-check.
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import { fresnelModeOf, scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
+import { fresnelModeOf, scenarioSchema, type FresnelMode, type Panel, type Scenario } from '../types/scenario'
 import { applyThinFilm } from './thinfilm/result'
 import { tracedPerRay } from '../types/ray-limits'
 import type { Losses, PanelResult, TraceResult } from '../types/result'
-import type { Panel } from '../types/scenario'
 import { DEFAULT_ACCEPT_DEG } from './panel'
 import { flatCompanion, type FlatCompanion } from './flat-quadrature'
 import { packScene, type PackedScene, S_HAS_LENS, S_PANEL_OFFSET, S_SPECTRAL_OFFSET } from './scene'
 import { traceRange } from './tracer'
 import { colourOf } from './colour'
 import {
-  createTally, hasPanel, mergeTally, PANEL_TALLY_LENGTH, PT_EDGE, PT_SPOT, PT_SPOT_ACCEPTED, PT_SPOT_THETA, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
+  createTally, hasPanel, mergeTally, PANEL_TALLY_LENGTH, PT_EDGE, PT_SPOT, PT_SPOT_ACCEPTED, PT_SPOT_THETA,
+  SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
   T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
   T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, TALLY_LENGTHS, THETA_BINS, type Tally,
 } from './tally'

@@ -172,6 +172,7 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   s[S_SOURCE_A_UM] = s[S_SOURCE_A_UM]! * factor
   s[S_SOURCE_B_UM] = s[S_SOURCE_B_UM]! * factor
   const pa = s[S_PANEL_OFFSET]!
-  if (pa > 0) for (const k of [P_HALF_WIDTH_UM, P_HALF_HEIGHT_UM, P_EMIT_WIDTH_UM, P_EMIT_HEIGHT_UM, P_SPOT_X_UM, P_SPOT_Y_UM, P_SPOT_RADIUS_UM]) s[pa + k] = s[pa + k]! * factor
+  const lengths = [P_HALF_WIDTH_UM, P_HALF_HEIGHT_UM, P_EMIT_WIDTH_UM, P_EMIT_HEIGHT_UM, P_SPOT_X_UM, P_SPOT_Y_UM, P_SPOT_RADIUS_UM]
+  if (pa > 0) for (const k of lengths) s[pa + k] = s[pa + k]! * factor
   return s
 }

@@ -83,10 +83,13 @@ export function stackOf(scene: PackedScene): Stack {
   }
 }
 
-function panelOf(scene: PackedScene): Pick<Stack, 'panelAt' | 'halfWidthUm' | 'halfHeightUm' | 'emitWidthUm' | 'emitHeightUm' | 'edgeKind' | 'trapsAtTop'> {
+type PanelFields = 'panelAt' | 'halfWidthUm' | 'halfHeightUm' | 'emitWidthUm' | 'emitHeightUm' | 'edgeKind' | 'trapsAtTop'
+function panelOf(scene: PackedScene): Pick<Stack, PanelFields> {
   const pa = scene[S_PANEL_OFFSET]!
   const specular = scene[S_DIFFUSE_FRACTION]! === 0 || scene[S_REFLECTANCE]! === 0
-  if (!(pa > 0)) return { panelAt: 0, halfWidthUm: Infinity, halfHeightUm: Infinity, emitWidthUm: 0, emitHeightUm: 0, edgeKind: EDGE_ABSORBING, trapsAtTop: specular }
+  if (!(pa > 0)) {
+    return { panelAt: 0, halfWidthUm: Infinity, halfHeightUm: Infinity, emitWidthUm: 0, emitHeightUm: 0, edgeKind: EDGE_ABSORBING, trapsAtTop: specular }
+  }
   const edgeKind = scene[pa + P_EDGE_KIND]!
   return {
     panelAt: pa, halfWidthUm: scene[pa + P_HALF_WIDTH_UM]!, halfHeightUm: scene[pa + P_HALF_HEIGHT_UM]!,

@@ -1,6 +1,7 @@
 // Mergeable tallies of analog Monte Carlo: integer counts only (stored in a Float64Array, exact below 2^53), so
 // merging chunks in any order gives bitwise the same totals. Channels: each launched ray ends in exactly one of
-// extracted, reflector, substrate, waveguided, trapped, unresolved, stack-absorbed (thin-film source), edge (finite panel, panel block). Extracted rays are binned by their direction in
+// extracted, reflector, substrate, waveguided, trapped, unresolved, stack-absorbed (thin-film source), edge (finite
+// panel, panel block). Extracted rays are binned by their direction in
 // air: 90 polar bins of 1° (θ from +z) and a θ–φ map of 90 × 72 bins (φ from +x, 5° bins: 12 per 60°, 18 per 90°,
 // so 6-fold and 4-fold symmetry can be checked bin for bin).
 

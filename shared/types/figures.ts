@@ -59,7 +59,9 @@ export function cellSummaryOf(r: TraceResult): CellSummary {
     ...(r.photopicOnAxisGain !== undefined && r.photopicOnAxisGain !== null
       ? { photopicOnAxisGain: r.photopicOnAxisGain, photopicOnAxisGainStdErr: r.photopicOnAxisGainStdErr ?? null } : {}),
     // panel figures only for a finite panel, so summaries of infinite-array runs stay as they were
-    ...(r.panel ? { measuredGain: r.panel.gain.value, measuredGainStdErr: r.panel.gain.stdErr, edgeLoss: r.panel.edge.value, edgeLossStdErr: r.panel.edge.stdErr } : {}),
+    ...(r.panel ? {
+      measuredGain: r.panel.gain.value, measuredGainStdErr: r.panel.gain.stdErr, edgeLoss: r.panel.edge.value, edgeLossStdErr: r.panel.edge.stdErr,
+    } : {}),
     losses: r.losses,
     lossesStdErr: r.lossesStdErr,
   }

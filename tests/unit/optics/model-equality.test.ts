@@ -4,7 +4,8 @@
 // lattice and an event limit that bites). A physics change made in one and not the other fails here.
 import { describe, expect, it, vi } from 'vitest'
 import {
-  COLOUR_BINS, COLOUR_LAUNCH_ROW, createTally, packScene, panelBlockOf, PT_EDGE, PT_SPOT, S_PANEL_OFFSET, S_SPECTRAL_OFFSET, traceRange, traceRangeModel, T_COLOUR, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED,
+  COLOUR_BINS, COLOUR_LAUNCH_ROW, createTally, packScene, panelBlockOf, PT_EDGE, PT_SPOT, S_PANEL_OFFSET, S_SPECTRAL_OFFSET,
+  traceRange, traceRangeModel, T_COLOUR, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED,
   THETA_BINS, PHI_BINS,
 } from '../../../shared/optics'
 import { scenarioSchema, type ScenarioInput } from '../../../shared/types/scenario'
