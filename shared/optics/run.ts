@@ -316,10 +316,12 @@ function summarizeCounts(t: RunTallies, seed: number, fresnel?: FresnelMode, fla
   }
 }
 
+/** a/b with σ from (σ/g)² = (σa/a)² + (σb/b)²; null while b is 0 (no ratio yet), σ null while a is 0 too. */
 const ratioOf = (a: number, ae: number, b: number, be: number, same: boolean) => {
   if (same) return { value: 1, stdErr: 0 }
-  const g = b > 0 ? a / b : NaN
-  return { value: g, stdErr: a > 0 && b > 0 ? g * Math.sqrt((ae / a) ** 2 + (be / b) ** 2) : NaN }
+  if (!(b > 0)) return { value: null, stdErr: null }
+  const g = a / b
+  return { value: g, stdErr: a > 0 ? g * Math.sqrt((ae / a) ** 2 + (be / b) ** 2) : null }
 }
 
 /**

@@ -102,8 +102,8 @@ export const panelResultSchema = z.object({
   measures: z.string(),
   measured: z.object({ value: z.number(), stdErr: z.number(), unit: z.enum(['%', '× Lamb.']) }),
   planarMeasured: valueWithErr,
-  /** measured over planarMeasured, σ as for `enhancement` (independent streams). */
-  gain: valueWithErr,
+  /** measured over planarMeasured, σ as for `enhancement` (independent streams); null while the flat device reads 0. */
+  gain: z.object({ value: z.number().nullable(), stdErr: z.number().nullable() }),
   /** Fraction of launched rays that ended at an edge (losses.edge), device and companion. */
   edge: valueWithErr,
   planarEdge: valueWithErr,
