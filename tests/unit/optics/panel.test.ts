@@ -47,7 +47,8 @@ describe('packing and tallies', () => {
     const at = s[S_PANEL_OFFSET]!
     expect(at).toBeGreaterThan(0)
     expect([s[at + P_HALF_WIDTH_UM], s[at + P_HALF_HEIGHT_UM], s[at + P_EMIT_WIDTH_UM]]).toEqual([10_000, 5000, 8000])
-    expect([s[at + P_EDGE_KIND], s[at + P_DETECTOR], s[at + P_SPOT_X_UM], s[at + P_SPOT_RADIUS_UM]]).toEqual([EDGE_POLISHED, DETECTOR_LUMINANCE_METER, 1000, 1000])
+    expect([s[at + P_EDGE_KIND], s[at + P_DETECTOR], s[at + P_SPOT_X_UM], s[at + P_SPOT_RADIUS_UM]])
+      .toEqual([EDGE_POLISHED, DETECTOR_LUMINANCE_METER, 1000, 1000])
     expect(s[at + P_COS_ACCEPT]).toBeCloseTo(Math.cos((2 * Math.PI) / 180), 15)
     expect(packScene(scenarioSchema.parse(base))[S_PANEL_OFFSET]).toBe(0)
     // the flat companion keeps the panel and its detector
