@@ -5,7 +5,8 @@
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
 // top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts. With a thin-film source
 // (thinfilm/source.ts) rays start in the substrate at z = 0 and the OLED stack takes the place of the emitter layer
-// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed.
+// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed. On a finite panel
+// (panel.ts) substrate segments end at the glass edges too (panelSubstrateStep, edgeStep).
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
 import {
   CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, linearPolarizationIn, metalReflect, metalReflectNormalIn, pin, randomPolarization, stackReflectsIn,

@@ -10,7 +10,9 @@
 // More than maxEvents interface/reflector encounters: unresolved. A call may also carry an event budget for all its
 // rays (the batch's share): once it is spent, each ray left is cut short and counted unresolved too, so the work of
 // one call is bounded whatever the geometry, and decided by the ray stream alone (never by the clock). Positions are wrapped to the nearest lattice site
-// whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
+// whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small; the site offset
+// (ox, oy) keeps the absolute position. A finite panel (panel.ts) cuts substrate segments at its edges, where the ray
+// is absorbed, mirrored, re-emitted (ground) or meets a polished glass–air face (steps.ts edgeStep).
 // Thin-film source (scene[S_THINFILM_OFFSET] > 0): the launch draws the wavelength first, then polarisation, μ and φ
 // from the stack's emission into the glass, and the ray starts in the substrate going up; at the bottom face the
 // stack reflects with its own r_s, r_p or absorbs (stackAbsorbed), as steps.ts stackStep.
