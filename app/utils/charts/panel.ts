@@ -6,11 +6,6 @@ import type { CsvTable } from './thinFilm'
 
 const INK = '#17202b', EMBER = '#b86d18', LAGOON = '#1f6b6a', MUTED = '#64707f'
 
-/** Detector names as the result page shows them. */
-export const DETECTOR_NAMES: Record<PanelResult['detector']['kind'], string> = {
-  sphere: 'Integrating sphere', goniometer: 'Goniometer with field stop', luminanceMeter: 'Luminance meter',
-}
-
 /** Edge kinds in the trade's words. */
 export const EDGE_NAMES: Record<PanelResult['edges'], string> = {
   absorbing: 'absorbing (blackened)', mirrored: 'mirrored', ground: 'ground (diffuse)', polished: 'polished (light leaves)',
