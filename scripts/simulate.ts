@@ -104,6 +104,14 @@ function summaryText(r: TraceResult, threads: number, seconds: number): string {
       `                     planar ${pm(p.planarOnAxisRelative, p.planarOnAxisRelativeStdErr, 3)}, on-axis enhancement ${pm(p.onAxisEnhancement, p.onAxisEnhancementStdErr, 3)} ×`,
     )
   }
+  if (r.panel) {
+    const p = r.panel, reading = (v: number, e: number) => (p.measured.unit === '%' ? pct(v, e) : `${pm(v, e, 3)} × Lambertian`)
+    lines.push(
+      `measured             ${p.measures}`,
+      `                     ${reading(p.measured.value, p.measured.stdErr)}; flat device ${reading(p.planarMeasured.value, p.planarMeasured.stdErr)}; gain ${pm(p.gain.value ?? NaN, p.gain.stdErr ?? NaN, 3)} ×`,
+      `panel edges          ${p.edges}: ${pct(p.edge.value, p.edge.stdErr)} of emitted flux ends there (flat device ${pct(p.planarEdge.value, p.planarEdge.stdErr)})`,
+    )
+  }
   for (const d of r.luminance.directions ?? []) {
     lines.push(`reciprocal luminance θ ${String(d.thetaDeg).padStart(2)}°, φ ${d.phiDeg}°: ${pm(d.relative, d.relativeStdErr, 4)} × Lambertian of the emitted flux`)
   }
@@ -141,6 +149,7 @@ async function main() {
   if (!parsed.ok) fail(`${args.file} is not a valid scenario:\n  ${parsed.errors.join('\n  ')}`)
   const sc = parsed.scenario
   if (args.directions && sc.emitter.source.shape !== 'extended') fail('--directions needs an extended source: reciprocal luminance is the film average, a pixel footprint is not')
+  if (args.directions && sc.panel) fail('--directions is for the infinite array: a finite panel is read by its detector (panel.detector in the scenario)')
   const rays = args.rays ?? sc.trace.rays
   const seed = args.seed ?? sc.trace.seed
   const threads = args.threads ?? Math.max(1, availableParallelism())

@@ -73,6 +73,18 @@ export const DESIGN_PRESETS: readonly DesignPreset[] = [
     scenario: { ...stack, lensArray: { lattice: 'hexagonal', pitchUm: 10, diameterUm: 10, sagUm: 1.5, shape: 'spherical' } },
   },
   {
+    id: 'tile-meter',
+    source: 'sheet',
+    name: 'Lighting tile 50 mm, luminance meter',
+    hint: 'Tallowby Luminous Panels\' 50 × 50 mm tile idea: touching hemispheres on 0.7 mm glass with blackened edges, read by a meter on a 20 mm spot.',
+    scenario: {
+      ...stack,
+      substrate: { ...stack.substrate, thicknessUm: 700 },
+      lensArray: hemispheres,
+      panel: { widthMm: 50, heightMm: 50, edges: 'absorbing', detector: { kind: 'luminanceMeter', spotCentreMm: [0, 0], spotDiameterMm: 20, acceptanceDeg: 5 } },
+    },
+  },
+  {
     id: 'green-stack',
     source: 'stack',
     name: 'Green phosphorescent stack, close-packed hemispheres',

@@ -46,7 +46,7 @@ export function tracePreviewPaths(sc: Scenario, rays: number, seed: number): Tra
     vertex(x, y, z) { pts.push([x, y, z]) },
     finish(ray: Ray) { out.push({ end: ray.end, bounces: ray.bounces, pts, dir: [ray.dx, ray.dy, ray.dz] }) },
   }
-  traceRangeModel(packScene(sc), 0, rays, seed, createTally(), PREVIEW_STREAM, recorder)
+  traceRangeModel(packScene(sc), 0, rays, seed, createTally(false, sc.panel !== undefined), PREVIEW_STREAM, recorder)
   return out
 }
 

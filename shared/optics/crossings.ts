@@ -263,6 +263,18 @@ export function metalReflectIn(f: Float64Array): void {
   compose(f, -pj[6]!, -pj[7]!, pj[8]!, pj[9]!, kx, ky, -kz)
 }
 
+/**
+ * An ideal metal face with unit normal n (pin[3..5], into the metal; the finite panel's mirrored edge): the field's
+ * s part flips (rs = −1), p is kept (rp = +1), as metalReflectIn for the back reflector. k in pin[0..2], cosI = k·n
+ * in pin[6]; the caller mirrors the ray, k − 2(k·n)n.
+ */
+export function metalReflectNormalIn(f: Float64Array): void {
+  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
+  project(f, kx, ky, kz, nx, ny, nz)
+  const g = 2 * pin[6]!
+  compose(f, -pj[6]!, -pj[7]!, pj[8]!, pj[9]!, kx - g * nx, ky - g * ny, kz - g * nz)
+}
+
 /** A random linear polarisation for a ray along k: angle 2πu from the s direction of k against z (f real). */
 export function randomPolarization(f: Float64Array, u: number, kx: number, ky: number, kz: number): void {
   pin[0] = kx; pin[1] = ky; pin[2] = kz; pin[10] = u

@@ -45,7 +45,8 @@ export type FlatCompanion = TraceResult['planar'] & { method: 'quadrature' }
 export function flatQuadratureApplies(sc: Scenario): boolean {
   // A thin-film stack has its own exact flat formula (thinfilm/flat.ts, applied in summarize); either way the
   // companion of an extended source costs no rays. A finite pixel's footprint tally needs traced companion rays.
-  return sc.emitter.source.shape === 'extended'
+  // A finite panel (edges, a detector's spot) is not the infinite flat stack the quadrature sums: traced.
+  return sc.emitter.source.shape === 'extended' && sc.panel === undefined
 }
 
 const DEG = Math.PI / 180

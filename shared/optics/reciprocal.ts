@@ -54,6 +54,8 @@ function startPath(ray: Ray, st: Stack, view: ViewDirection): void {
  */
 export function reciprocalLuminance(scene: PackedScene, view: ViewDirection, paths: number, seed: number, streamOffset = 0): ReciprocalEstimate {
   const st = stackOf(scene)
+  // backward paths start in one cell and score every emitter crossing: the infinite array's luminance, not a panel's
+  if (st.panelAt > 0) throw new Error('reciprocal luminance is for the infinite array: a finite panel is read by its detector (panel.detector)')
   const f = emissionDensityOf(scene)
   const ray = createRay()
   let s1 = 0, s2 = 0

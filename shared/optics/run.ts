@@ -6,18 +6,20 @@
 // the device alone, σE/E = σ1/η1. 'traced' keeps the traced companion as the cross-check.
 // Rays are cut into fixed chunks of CHUNK_RAYS whose boundaries do not depend on the thread count; tallies hold
 // integer counts, so any merge order gives bitwise identical results. summarize turns counts into the result.
-import { fresnelModeOf, scenarioSchema, type FresnelMode, type Scenario } from '../types/scenario'
+import { fresnelModeOf, scenarioSchema, type FresnelMode, type Panel, type Scenario } from '../types/scenario'
 import { applyThinFilm } from './thinfilm/result'
 import { tracedPerRay } from '../types/ray-limits'
-import type { Losses, TraceResult } from '../types/result'
+import type { Losses, PanelResult, TraceResult } from '../types/result'
+import { DEFAULT_ACCEPT_DEG } from './panel'
 import { flatCompanion, type FlatCompanion } from './flat-quadrature'
-import { packScene, type PackedScene, S_HAS_LENS, S_SPECTRAL_OFFSET } from './scene'
+import { packScene, type PackedScene, S_HAS_LENS, S_PANEL_OFFSET, S_SPECTRAL_OFFSET } from './scene'
 import { traceRange } from './tracer'
 import { colourOf } from './colour'
 import {
-  createTally, mergeTally, SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
+  createTally, hasPanel, mergeTally, PANEL_TALLY_LENGTH, PT_EDGE, PT_SPOT, PT_SPOT_ACCEPTED, PT_SPOT_THETA,
+  SPECTRAL_TALLY_LENGTH, widenTally, PHI_BINS, PIXEL_AXIS_BINS, TALLY_LENGTH, T_PIXEL_AXIS, T_PIXEL_EXTRACTED,
   T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED,
-  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, THETA_BINS, type Tally,
+  T_STACK_ABSORBED, T_UNRESOLVED, T_WAVEGUIDED, TALLY_LENGTHS, THETA_BINS, type Tally,
 } from './tally'
 
 export const CHUNK_RAYS = 1 << 16
@@ -71,7 +73,9 @@ export function companionFor(scenario: unknown, t: RunTallies): FlatCompanion | 
  */
 export function summaryScenario(stored: unknown): Scenario | undefined {
   const tf = (stored as { emitter?: { thinFilm?: unknown } } | null)?.emitter?.thinFilm
-  if (tf === undefined) return undefined
+  // a finite panel's reading needs the panel and its detector (sizes, spot) besides the counts
+  const panel = (stored as { panel?: unknown } | null)?.panel
+  if (tf === undefined && panel === undefined) return undefined
   const parsed = scenarioSchema.safeParse(stored)
   return parsed.success ? parsed.data : undefined
 }
@@ -96,11 +100,12 @@ export function traceChunk(run: RunScenes, firstRay: number, rayCount: number, s
   eventBudget = Infinity): RunTallies {
   // a scene with a spectrum gets the colour block (tally.ts); otherwise the tally is as before
   const colour = run.device[S_SPECTRAL_OFFSET]! > 0
-  const device = createTally(colour)
+  const panel = run.device[S_PANEL_OFFSET]! > 0 // a finite panel's scenes get the panel block (edge channel, detector)
+  const device = createTally(colour, panel)
   traceRange(run.device, firstRay, rayCount, seed, device, shouldStop, STREAM_DEVICE, eventBudget)
   let planar: Tally | null = null
   if (run.planar) {
-    planar = createTally(colour)
+    planar = createTally(colour, panel)
     traceRange(run.planar, firstRay, rayCount, seed, planar, shouldStop, STREAM_PLANAR, eventBudget)
   }
   return { device, planar }
@@ -121,8 +126,8 @@ export function traceScenario(sc: Scenario, opts: { rays?: number; seed?: number
   const rays = opts.rays ?? sc.trace.rays
   const seed = opts.seed ?? sc.trace.seed
   const run = prepareRun(sc, { companion: opts.companion })
-  const colour = run.device[S_SPECTRAL_OFFSET]! > 0
-  const total: RunTallies = { device: createTally(colour), planar: run.planar ? createTally(colour) : null }
+  const colour = run.device[S_SPECTRAL_OFFSET]! > 0, panel = run.device[S_PANEL_OFFSET]! > 0
+  const total: RunTallies = { device: createTally(colour, panel), planar: run.planar ? createTally(colour, panel) : null }
   for (const [first, count] of planChunks(rays)) mergeRunTallies(total, traceChunk(run, first, count, seed))
   return summarize(total, seed, sc.trace.fresnel, run.planar || !sc.lensArray ? null : companionFor(sc, total), sc)
 }
@@ -137,10 +142,11 @@ function lossesOf(t: Tally): { v: Losses; e: Losses } {
   const n = t[T_RAYS]!
   const f = (i: number) => (n > 0 ? t[i]! / n : 0)
   const e = (i: number) => binomialErr(t[i]!, n)
-  return {
-    v: { reflector: f(T_REFLECTOR), substrate: f(T_SUBSTRATE), waveguided: f(T_WAVEGUIDED), trapped: f(T_TRAPPED), unresolved: f(T_UNRESOLVED) },
-    e: { reflector: e(T_REFLECTOR), substrate: e(T_SUBSTRATE), waveguided: e(T_WAVEGUIDED), trapped: e(T_TRAPPED), unresolved: e(T_UNRESOLVED) },
-  }
+  const v: Losses = { reflector: f(T_REFLECTOR), substrate: f(T_SUBSTRATE), waveguided: f(T_WAVEGUIDED), trapped: f(T_TRAPPED), unresolved: f(T_UNRESOLVED) }
+  const err: Losses = { reflector: e(T_REFLECTOR), substrate: e(T_SUBSTRATE), waveguided: e(T_WAVEGUIDED), trapped: e(T_TRAPPED), unresolved: e(T_UNRESOLVED) }
+  // a finite panel's edge channel (the tally's panel block)
+  if (hasPanel(t)) { const i = t.length - PANEL_TALLY_LENGTH + PT_EDGE; v.edge = f(i); err.edge = e(i) }
+  return { v, e: err }
 }
 
 const DEG = Math.PI / 180
@@ -178,6 +184,7 @@ function angularProfile(t: Tally) {
  */
 export function summarize(t: RunTallies, seed: number, fresnel?: FresnelMode, flat?: FlatCompanion | null, scenario?: Scenario): TraceResult {
   const r = summarizeCounts(t, seed, fresnel, flat)
+  if (scenario?.panel !== undefined && hasPanel(t.device)) r.panel = panelReading(t, scenario.panel)
   // tallies stored before the stack slot existed are one slot shorter: no stack-absorbed rays
   if (scenario?.emitter.thinFilm !== undefined) return applyThinFilm(r, scenario, t.device[T_STACK_ABSORBED] ?? 0)
   return r
@@ -309,6 +316,90 @@ function summarizeCounts(t: RunTallies, seed: number, fresnel?: FresnelMode, fla
   }
 }
 
+/** a/b with σ from (σ/g)² = (σa/a)² + (σb/b)²; null while b is 0 (no ratio yet), σ null while a is 0 too. */
+const ratioOf = (a: number, ae: number, b: number, be: number, same: boolean) => {
+  if (same) return { value: 1, stdErr: 0 }
+  if (!(b > 0)) return { value: null, stdErr: null }
+  const g = a / b
+  return { value: g, stdErr: a > 0 ? g * Math.sqrt((ae / a) ** 2 + (be / b) ** 2) : null }
+}
+
+/**
+ * A finite panel's reading (panel.ts): the detector's figure for the device and its traced companion (same panel,
+ * same detector; for a planar design the device itself), the edge channel, and the spot's angular profile.
+ * Sphere: (front [+ edge exits]) / N. Spot detectors: relative luminance (c/N)/(A_spot/A_emit)/(sin²θb − sin²θa), the
+ * on-axis figure over θ < acceptance (the meter's cone, counted exactly: dz ≥ cos α; the goniometer's 5° cone from its
+ * 1° bins, as the infinite run's on-axis luminance).
+ */
+function panelReading(t: RunTallies, p: Panel): PanelResult {
+  const d = t.device, c = t.planar ?? d, same = c === d
+  const at = (x: Tally) => x.length - PANEL_TALLY_LENGTH
+  const n = d[T_RAYS]!, nc = c[T_RAYS]!
+  const det = p.detector
+  const emitW = p.emitting?.widthMm ?? p.widthMm, emitH = p.emitting?.heightMm ?? p.heightMm
+  const fr = (x: number, m: number) => (m > 0 ? x / m : 0)
+  const edge = (x: Tally) => ({ value: fr(x[at(x) + PT_EDGE]!, x[T_RAYS]!), stdErr: binomialErr(x[at(x) + PT_EDGE]!, x[T_RAYS]!) })
+  const accDeg = det.kind === 'luminanceMeter' ? det.acceptanceDeg : DEFAULT_ACCEPT_DEG
+  let measured: PanelResult['measured'], planarMeasured: PanelResult['planarMeasured'], measures: string
+  let spot: PanelResult['spot'] = null
+  if (det.kind === 'sphere') {
+    const withEdges = det.includeEdges && p.edges === 'polished'
+    const reading = (x: Tally) => {
+      const k = x[T_EXTRACTED]! + (withEdges ? x[at(x) + PT_EDGE]! : 0)
+      return { value: fr(k, x[T_RAYS]!), stdErr: binomialErr(k, x[T_RAYS]!) }
+    }
+    const m = reading(d)
+    measured = { ...m, unit: '%' }
+    planarMeasured = reading(c)
+    measures = `Integrating sphere: all light leaving the front face${withEdges ? ' and the polished edges' : ''} of the ${p.widthMm} × ${p.heightMm} mm panel, as a share of the light emitted.`
+  } else {
+    const areaFraction = (Math.PI * (det.spotDiameterMm / 2) ** 2) / (emitW * emitH)
+    const prof = (x: Tally) => {
+      const m = x[T_RAYS]!
+      const lum: number[] = [], lumE: number[] = [], perSr: number[] = [], perSrE: number[] = []
+      for (let b = 0; b < THETA_BINS; b++) {
+        const ta = b * DEG, tb = (b + 1) * DEG
+        const k = x[at(x) + PT_SPOT_THETA + b]!
+        const kE = m > 0 ? Math.sqrt(k * (1 - k / m)) : 0
+        const dOmega = 2 * Math.PI * (Math.cos(ta) - Math.cos(tb)), lamb = (Math.sin(tb) ** 2 - Math.sin(ta) ** 2) * areaFraction
+        perSr.push(m > 0 ? k / (m * dOmega) : 0); perSrE.push(m > 0 ? kE / (m * dOmega) : 0)
+        lum.push(m > 0 ? k / m / lamb : 0); lumE.push(m > 0 ? kE / m / lamb : 0)
+      }
+      return { lum, lumE, perSr, perSrE }
+    }
+    const pd = prof(d), pc = prof(c)
+    spot = {
+      areaFraction, extraction: fr(d[at(d) + PT_SPOT]!, n), extractionStdErr: binomialErr(d[at(d) + PT_SPOT]!, n),
+      perSteradian: pd.perSr, perSteradianStdErr: pd.perSrE, luminanceRelative: pd.lum, luminanceRelativeStdErr: pd.lumE,
+      planarLuminanceRelative: pc.lum, planarLuminanceRelativeStdErr: pc.lumE,
+    }
+    const lambAxis = Math.sin(accDeg * DEG) ** 2 * areaFraction
+    const onAxis = (x: Tally) => {
+      let k = 0
+      if (det.kind === 'luminanceMeter') k = x[at(x) + PT_SPOT_ACCEPTED]!
+      else for (let b = 0; b < DEFAULT_ACCEPT_DEG; b++) k += x[at(x) + PT_SPOT_THETA + b]!
+      return { value: fr(k, x[T_RAYS]!) / lambAxis, stdErr: binomialErr(k, x[T_RAYS]!) / lambAxis }
+    }
+    measured = { ...onAxis(d), unit: '× Lamb.' }
+    planarMeasured = onAxis(c)
+    const where = `a ${det.spotDiameterMm} mm spot at (${det.spotCentreMm[0]}, ${det.spotCentreMm[1]}) mm of the ${p.widthMm} × ${p.heightMm} mm panel`
+    measures = det.kind === 'goniometer'
+      ? `Goniometer with a field stop: light leaving the front face inside ${where}, by angle; the figure is its on-axis luminance (θ < ${DEFAULT_ACCEPT_DEG}°).`
+      : `Luminance meter: ${where}, acceptance half-angle ${det.acceptanceDeg}° about the normal.`
+  }
+  return {
+    widthMm: p.widthMm, heightMm: p.heightMm, emittingWidthMm: emitW, emittingHeightMm: emitH, edges: p.edges,
+    detector: {
+      kind: det.kind, acceptanceDeg: accDeg,
+      ...(det.kind === 'sphere' ? { includeEdges: det.includeEdges } : { spotCentreMm: det.spotCentreMm, spotDiameterMm: det.spotDiameterMm }),
+    },
+    measures, measured, planarMeasured,
+    gain: ratioOf(measured.value, measured.stdErr, planarMeasured.value, planarMeasured.stdErr, same || nc === 0),
+    edge: edge(d), planarEdge: edge(c),
+    spot,
+  }
+}
+
 /**
  * Colour over angle of the device and its companion (colour.ts), present only when the tallies carry the colour
  * block; photopicOnAxisGain = device over companion photopic on-axis luminance, σ as for `enhancement`
@@ -347,9 +438,9 @@ export function runTalliesToBuffer(t: RunTallies): ArrayBuffer {
 
 export function runTalliesFromBuffer(buf: ArrayBuffer | ArrayBufferLike): RunTallies {
   const all = new Float64Array(buf)
-  for (const L of [TALLY_LENGTH, SPECTRAL_TALLY_LENGTH]) {
+  for (const L of TALLY_LENGTHS) {
     if (all.length === L) return { device: all.subarray(0, L), planar: null }
     if (all.length === 2 * L) return { device: all.subarray(0, L), planar: all.subarray(L) }
   }
-  throw new Error(`run buffer has ${all.length} numbers, expected 1 or 2 × ${TALLY_LENGTH} (or × ${SPECTRAL_TALLY_LENGTH} with colour)`)
+  throw new Error(`run buffer has ${all.length} numbers, expected 1 or 2 × ${TALLY_LENGTH} (or × ${SPECTRAL_TALLY_LENGTH} with colour, × ${TALLY_LENGTHS[2]} or ${TALLY_LENGTHS[3]} for a finite panel)`)
 }

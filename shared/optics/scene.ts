@@ -7,6 +7,9 @@ import { conicCurvaturePerUm, shapeConicConstant } from '../types/geometry'
 import { buildProfileTable, PROFILE_GRID } from './sampling'
 import { buildProfile, type MonotoneProfile } from './profile'
 import { thinFilmSource } from './thinfilm/source'
+import {
+  buildPanelBlock, P_EMIT_HEIGHT_UM, P_EMIT_WIDTH_UM, P_HALF_HEIGHT_UM, P_HALF_WIDTH_UM, P_SPOT_RADIUS_UM, P_SPOT_X_UM, P_SPOT_Y_UM, PANEL_BLOCK_LENGTH,
+} from './panel'
 
 export const S_HAS_LENS = 0
 export const S_N_EMITTER = 1
@@ -37,7 +40,9 @@ export const S_SPECTRAL_OFFSET = 22
 export const S_LENS_ABSORPTION_PER_UM = 23
 /** Offset of the thin-film block (thinfilm/source.ts) when the emitter is an OLED stack, else 0. */
 export const S_THINFILM_OFFSET = 24
-export const S_HEADER = 25
+/** Offset of the finite panel's block (panel.ts) when the scenario has a panel, else 0 (the infinite array). */
+export const S_PANEL_OFFSET = 25
+export const S_HEADER = 26
 /** Offset of the tabulated profile grid (2·(PROFILE_GRID+1) numbers) when S_PROFILE = 2. */
 export const S_TABLE = S_HEADER
 
@@ -66,7 +71,8 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
   // the OLED stack's tables (cached per stack, glass index and spectrum on this thread)
   const tf = sc.emitter.thinFilm ? thinFilmSource(sc) : null
   const tfLen = tf ? tf.block.length : 0
-  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0) + tfLen)
+  const panelLen = sc.panel ? PANEL_BLOCK_LENGTH : 0
+  const s = new Float64Array(S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0) + tfLen + panelLen)
   // Indices at the monochromatic wavelength (a spectrum replaces them ray by ray from the spectral block)
   const lam = DEFAULT_WAVELENGTH_NM
   const lensIndex: IndexModel = sc.lensArray?.index ?? sc.substrate.index
@@ -129,6 +135,12 @@ export function packScene(sc: Scenario, opts: { planar?: boolean } = {}): Packed
     s[S_THINFILM_OFFSET] = at
     s.set(tf.block, at)
   }
+  if (sc.panel) {
+    // the planar companion keeps the panel and its detector: it is measured the same way
+    const at = S_HEADER + tableLen + measuredLen + (spectral ? SPECTRAL_BLOCK_LENGTH : 0) + tfLen
+    s[S_PANEL_OFFSET] = at
+    s.set(buildPanelBlock(sc.panel), at)
+  }
   return s
 }
 
@@ -159,5 +171,8 @@ export function scaleScene(scene: PackedScene, factor: number): PackedScene {
   s[S_CURVATURE_PER_UM] = s[S_CURVATURE_PER_UM]! / factor
   s[S_SOURCE_A_UM] = s[S_SOURCE_A_UM]! * factor
   s[S_SOURCE_B_UM] = s[S_SOURCE_B_UM]! * factor
+  const pa = s[S_PANEL_OFFSET]!
+  const lengths = [P_HALF_WIDTH_UM, P_HALF_HEIGHT_UM, P_EMIT_WIDTH_UM, P_EMIT_HEIGHT_UM, P_SPOT_X_UM, P_SPOT_Y_UM, P_SPOT_RADIUS_UM]
+  if (pa > 0) for (const k of lengths) s[pa + k] = s[pa + k]! * factor
   return s
 }

@@ -5,9 +5,15 @@
 // Frame z up, µm; the emitter layer at z = 0 (zero thickness, the reflector directly under it), the substrate's
 // top face at z = t, cap vertices at z = t + h. Snell/Fresnel only through crossings.ts. With a thin-film source
 // (thinfilm/source.ts) rays start in the substrate at z = 0 and the OLED stack takes the place of the emitter layer
-// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed.
+// and reflector: stackStep reflects with its coherent r_s, r_p or ends the ray as stackAbsorbed. On a finite panel
+// (panel.ts) substrate segments end at the glass edges too (panelSubstrateStep, edgeStep).
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, linearPolarizationIn, metalReflect, pin, randomPolarization, stackReflectsIn } from './crossings'
+import {
+  CROSS_TIR, CROSS_TRANSMIT, curvedCrossing, flatCrossing, linearPolarizationIn, metalReflect, metalReflectNormalIn, pin, randomPolarization, stackReflectsIn,
+} from './crossings'
+import {
+  EDGE_ABSORBING, EDGE_GROUND, EDGE_MIRRORED, END_EDGE, P_EDGE_KIND, P_EMIT_HEIGHT_UM, P_EMIT_WIDTH_UM, P_HALF_HEIGHT_UM, P_HALF_WIDTH_UM, panelEdgeHit,
+} from './panel'
 import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
 import { capHit, capNormal } from './geometry'
 import { HEX_ROW_FACTOR, sampleCell, wrapToSite } from './lattice'
@@ -19,7 +25,7 @@ import {
   FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, measuredProfileOf, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM,
   S_CURVATURE_PER_UM, S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_ABSORPTION_PER_UM, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_SPECTRAL_OFFSET,
   S_N_EMITTER, S_N_LENS, S_N_SUBSTRATE, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM,
-  S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+  S_PANEL_OFFSET, S_SOURCE_B_UM, S_TABLE, S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import { T_EXTRACTED, T_REFLECTOR, T_STACK_ABSORBED, T_SUBSTRATE, T_TRAPPED, T_UNRESOLVED, T_WAVEGUIDED } from './tally'
 
@@ -41,6 +47,14 @@ export interface Stack {
   /** Fresnel mode "polarized": the ray's field is tracked (ray.pol). */
   polarized: boolean
   maxEvents: number
+  /** Offset of the finite panel's block (panel.ts), 0 for the infinite array; its half-sizes, emitting size (µm), edge kind. */
+  panelAt: number
+  halfWidthUm: number; halfHeightUm: number; emitWidthUm: number; emitHeightUm: number; edgeKind: number
+  /**
+   * A totally reflected ray of the planar device with a specular reflector can never escape (trapped at once): true
+   * for the infinite array and a panel with mirrored edges (which keep n·sinθ); other edges end or turn such rays.
+   */
+  trapsAtTop: boolean
 }
 
 /**
@@ -66,6 +80,22 @@ export function stackOf(scene: PackedScene): Stack {
     fresnel: scene[S_FRESNEL]! !== FRESNEL_NONE,
     polarized: scene[S_FRESNEL]! === FRESNEL_POLARIZED,
     maxEvents: scene[S_MAX_EVENTS]!,
+    ...panelOf(scene),
+  }
+}
+
+type PanelFields = 'panelAt' | 'halfWidthUm' | 'halfHeightUm' | 'emitWidthUm' | 'emitHeightUm' | 'edgeKind' | 'trapsAtTop'
+function panelOf(scene: PackedScene): Pick<Stack, PanelFields> {
+  const pa = scene[S_PANEL_OFFSET]!
+  const specular = scene[S_DIFFUSE_FRACTION]! === 0 || scene[S_REFLECTANCE]! === 0
+  if (!(pa > 0)) {
+    return { panelAt: 0, halfWidthUm: Infinity, halfHeightUm: Infinity, emitWidthUm: 0, emitHeightUm: 0, edgeKind: EDGE_ABSORBING, trapsAtTop: specular }
+  }
+  const edgeKind = scene[pa + P_EDGE_KIND]!
+  return {
+    panelAt: pa, halfWidthUm: scene[pa + P_HALF_WIDTH_UM]!, halfHeightUm: scene[pa + P_HALF_HEIGHT_UM]!,
+    emitWidthUm: scene[pa + P_EMIT_WIDTH_UM]!, emitHeightUm: scene[pa + P_EMIT_HEIGHT_UM]!, edgeKind,
+    trapsAtTop: specular && edgeKind === EDGE_MIRRORED,
   }
 }
 
@@ -83,6 +113,7 @@ const v3 = new Float64Array(3)
 const cell = new Float64Array(2)
 const site = new Float64Array(3)
 const rc = new Float64Array(4)
+const edge = new Float64Array(2)
 
 function end(ray: Ray, slot: number): number {
   ray.end = slot
@@ -141,7 +172,9 @@ export function drawWavelength(ray: Ray, st: Stack, cellOut: Float64Array): void
 
 export function launch(ray: Ray, st: Stack, rec?: RayRecorder): void {
   const u1 = draw(ray), u2 = draw(ray)
-  if (st.source === SOURCE_EXTENDED) sampleCell(st.hexagonal, st.pitchUm, u1, u2, v3)
+  // a finite panel: uniform over its emitting area (absolute position; the first top-face wrap finds the lens site)
+  if (st.panelAt > 0) sampleRectangle(st.emitWidthUm, st.emitHeightUm, u1, u2, v3)
+  else if (st.source === SOURCE_EXTENDED) sampleCell(st.hexagonal, st.pitchUm, u1, u2, v3)
   else if (st.source === SOURCE_DISC) sampleDisc(st.sourceAUm, u1, u2, v3)
   else sampleRectangle(st.sourceAUm, st.sourceBUm, u1, u2, v3)
   ray.x = v3[0]!; ray.y = v3[1]!; ray.z = 0
@@ -217,8 +250,66 @@ export function emitterStep(ray: Ray, st: Stack): number {
  */
 export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   const tUm = st.thicknessUm
+  if (st.panelAt > 0) return panelSubstrateStep(ray, st, rec)
   const pathUm = ray.dz > 0 ? tUm / ray.dz : -tUm / ray.dz
   if (absorbedOn(ray, ray.alphaS, pathUm, rec)) return end(ray, T_SUBSTRATE)
+  return substrateFace(ray, st, pathUm, rec)
+}
+
+/**
+ * Substrate of a finite panel: from wherever the ray is (a face, or an edge after an edge event) towards the face
+ * ahead; when the segment meets an edge first (panel.ts panelEdgeHit on the absolute position) the ray stops there,
+ * Beer–Lambert on the shortened segment, and the edge acts (edgeStep: one event).
+ */
+function panelSubstrateStep(ray: Ray, st: Stack, rec: RayRecorder | undefined): number {
+  const pathUm = ray.dz > 0 ? (st.thicknessUm - ray.z) / ray.dz : ray.dz < 0 ? -ray.z / ray.dz : Infinity
+  panelEdgeHit(ray.x + ray.ox, ray.y + ray.oy, ray.dx, ray.dy, st.halfWidthUm, st.halfHeightUm, edge)
+  const sE = edge[0]!
+  if (!(sE < pathUm)) {
+    if (absorbedOn(ray, ray.alphaS, pathUm, rec)) return end(ray, T_SUBSTRATE)
+    return substrateFace(ray, st, pathUm, rec)
+  }
+  if (absorbedOn(ray, ray.alphaS, sE, rec)) return end(ray, T_SUBSTRATE)
+  ray.x += ray.dx * sE; ray.y += ray.dy * sE; ray.z += ray.dz * sE
+  // onto the edge exactly (absolute), so rounding never leaves the ray outside the glass
+  if (edge[1] === 1) ray.x = (ray.dx > 0 ? st.halfWidthUm : -st.halfWidthUm) - ray.ox
+  else ray.y = (ray.dy > 0 ? st.halfHeightUm : -st.halfHeightUm) - ray.oy
+  at(ray, rec)
+  return edgeStep(ray, st, edge[1] === 1)
+}
+
+/**
+ * The edge the ray has just reached (xEdge: a face x = ±hw, else y = ±hh), outward normal along the ray's lateral
+ * sense: absorbed (edge slot), mirrored (ideal metal), ground (Lambert about the inward normal, depolarised) or
+ * polished (Fresnel / TIR into air; transmitted light leaves through the edge: edge slot).
+ */
+export function edgeStep(ray: Ray, st: Stack, xEdge: boolean): number {
+  const k = st.edgeKind
+  if (k === EDGE_ABSORBING) return end(ray, END_EDGE)
+  const nx = xEdge ? (ray.dx > 0 ? 1 : -1) : 0, ny = xEdge ? 0 : (ray.dy > 0 ? 1 : -1)
+  ray.bounces++
+  if (k === EDGE_MIRRORED) {
+    const cosI = xEdge ? ray.dx * nx : ray.dy * ny
+    if (st.polarized) { pin[0] = ray.dx; pin[1] = ray.dy; pin[2] = ray.dz; pin[3] = nx; pin[4] = ny; pin[5] = 0; pin[6] = cosI; metalReflectNormalIn(ray.pol) }
+    if (xEdge) ray.dx -= 2 * cosI * nx
+    else ray.dy -= 2 * cosI * ny
+    return MEDIUM_SUBSTRATE
+  }
+  if (k === EDGE_GROUND) {
+    sampleLambertian(draw(ray), draw(ray), v3)
+    // the cosine-weighted axis (v3[2]) along the inward normal, the two tangential parts across the edge face
+    if (xEdge) { ray.dx = -nx * v3[2]!; ray.dy = v3[0]!; ray.dz = v3[1]! } else { ray.dx = v3[0]!; ray.dy = -ny * v3[2]!; ray.dz = v3[1]! }
+    if (st.polarized) randomPolarization(ray.pol, draw(ray), ray.dx, ray.dy, ray.dz)
+    return MEDIUM_SUBSTRATE
+  }
+  const c = curvedCrossing(ray, nx, ny, 0, ray.nS, 1, st.fresnel, st.polarized)
+  if (c === CROSS_TRANSMIT) { ray.bounces--; return end(ray, END_EDGE) }
+  return MEDIUM_SUBSTRATE
+}
+
+/** The substrate segment of length pathUm ends at the bottom or the top face (substrateStep, after Beer–Lambert). */
+function substrateFace(ray: Ray, st: Stack, pathUm: number, rec: RayRecorder | undefined): number {
+  const tUm = st.thicknessUm
   // (the fused loop skips moving the ray when no result depends on its lateral position; the model always moves it)
   if (ray.dz < 0) {
     ray.z = 0
@@ -249,7 +340,7 @@ export function substrateStep(ray: Ray, st: Stack, rec?: RayRecorder): number {
   }
   const c = flatCrossing(ray, true, ray.nS, 1, st.fresnel, st.polarized)
   if (c === CROSS_TIR) {
-    if (!st.hasLens && (st.diffuseFraction === 0 || st.reflectance === 0)) return end(ray, T_TRAPPED)
+    if (!st.hasLens && st.trapsAtTop) return end(ray, T_TRAPPED)
     ray.dz = -ray.dz; ray.bounces++
     return MEDIUM_SUBSTRATE
   }

@@ -1,6 +1,7 @@
 // Mergeable tallies of analog Monte Carlo: integer counts only (stored in a Float64Array, exact below 2^53), so
 // merging chunks in any order gives bitwise the same totals. Channels: each launched ray ends in exactly one of
-// extracted, reflector, substrate, waveguided, trapped, unresolved, stack-absorbed (thin-film source). Extracted rays are binned by their direction in
+// extracted, reflector, substrate, waveguided, trapped, unresolved, stack-absorbed (thin-film source), edge (finite
+// panel, panel block). Extracted rays are binned by their direction in
 // air: 90 polar bins of 1° (θ from +z) and a θ–φ map of 90 × 72 bins (φ from +x, 5° bins: 12 per 60°, 18 per 90°,
 // so 6-fold and 4-fold symmetry can be checked bin for bin).
 
@@ -53,17 +54,37 @@ export const T_COLOUR = TALLY_LENGTH
 export const COLOUR_TALLY_LENGTH = COLOUR_ROWS * COLOUR_BINS
 export const SPECTRAL_TALLY_LENGTH = TALLY_LENGTH + COLOUR_TALLY_LENGTH
 
+/**
+ * Panel block (finite panel scenes only, panel.ts; after the base slots and the colour block, if any): rays that
+ * ended at a substrate edge (absorbed there, or left through a polished edge: the `edge` channel, so each launched
+ * ray of a panel scene ends in exactly one of the channels above or this one), extracted rays leaving inside the
+ * detector's spot, those within its acceptance cone, and the spot's rays by 1° polar bin.
+ */
+export const PT_EDGE = 0
+export const PT_SPOT = 1
+export const PT_SPOT_ACCEPTED = 2
+export const PT_SPOT_THETA = 3
+export const PANEL_TALLY_LENGTH = PT_SPOT_THETA + THETA_BINS
+
 export type Tally = Float64Array
 
-/** A zeroed tally; `colour`: with the colour block (for a scene with a spectrum). */
-export function createTally(colour = false): Tally {
-  return new Float64Array(colour ? SPECTRAL_TALLY_LENGTH : TALLY_LENGTH)
+/** A zeroed tally; `colour`: with the colour block (for a scene with a spectrum); `panel`: with the panel block. */
+export function createTally(colour = false, panel = false): Tally {
+  return new Float64Array((colour ? SPECTRAL_TALLY_LENGTH : TALLY_LENGTH) + (panel ? PANEL_TALLY_LENGTH : 0))
 }
 
 /** True when the tally carries the colour block. */
 export function hasColour(t: Tally): boolean {
-  return t.length === SPECTRAL_TALLY_LENGTH
+  return t.length === SPECTRAL_TALLY_LENGTH || t.length === SPECTRAL_TALLY_LENGTH + PANEL_TALLY_LENGTH
 }
+
+/** True when the tally carries the panel block (at t.length − PANEL_TALLY_LENGTH). */
+export function hasPanel(t: Tally): boolean {
+  return t.length === TALLY_LENGTH + PANEL_TALLY_LENGTH || t.length === SPECTRAL_TALLY_LENGTH + PANEL_TALLY_LENGTH
+}
+
+/** The four layouts' lengths (plain, colour, panel, colour + panel): all different, and no one twice another. */
+export const TALLY_LENGTHS = [TALLY_LENGTH, SPECTRAL_TALLY_LENGTH, TALLY_LENGTH + PANEL_TALLY_LENGTH, SPECTRAL_TALLY_LENGTH + PANEL_TALLY_LENGTH] as const
 
 /** Colour bin of a wavelength (nm): 0–80 inside 377.5–782.5 nm, 81 outside. */
 export function colourBinOf(wavelengthNm: number): number {
@@ -84,13 +105,16 @@ export function mergeTally(dst: Tally, src: Tally): Tally {
  */
 export function widenTally(t: Tally, like: Tally): Tally {
   if (t.length >= like.length) return t
-  const w = new Float64Array(like.length)
-  w.set(t)
+  const colour = hasColour(t) || hasColour(like), panel = hasPanel(t) || hasPanel(like)
+  const w = createTally(colour, panel)
+  // the base slots and the colour block keep their places; a panel block moves to the end
+  w.set(hasPanel(t) ? t.subarray(0, t.length - PANEL_TALLY_LENGTH) : t)
+  if (hasPanel(t)) w.set(t.subarray(t.length - PANEL_TALLY_LENGTH), w.length - PANEL_TALLY_LENGTH)
   return w
 }
 
 export function tallyFromBuffer(buf: ArrayBuffer | ArrayBufferLike): Tally {
   const t = new Float64Array(buf)
-  if (t.length !== TALLY_LENGTH && t.length !== SPECTRAL_TALLY_LENGTH) throw new Error(`tally buffer has ${t.length} numbers, expected ${TALLY_LENGTH} or ${SPECTRAL_TALLY_LENGTH}`)
+  if (!(TALLY_LENGTHS as readonly number[]).includes(t.length)) throw new Error(`tally buffer has ${t.length} numbers, expected one of ${TALLY_LENGTHS.join(', ')}`)
   return t
 }

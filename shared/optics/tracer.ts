@@ -10,7 +10,9 @@
 // More than maxEvents interface/reflector encounters: unresolved. A call may also carry an event budget for all its
 // rays (the batch's share): once it is spent, each ray left is cut short and counted unresolved too, so the work of
 // one call is bounded whatever the geometry, and decided by the ray stream alone (never by the clock). Positions are wrapped to the nearest lattice site
-// whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small.
+// whenever the ray reaches the top face (the stack is laterally periodic), so coordinates stay small; the site offset
+// (ox, oy) keeps the absolute position. A finite panel (panel.ts) cuts substrate segments at its edges, where the ray
+// is absorbed, mirrored, re-emitted (ground) or meets a polished glass–air face (steps.ts edgeStep).
 // Thin-film source (scene[S_THINFILM_OFFSET] > 0): the launch draws the wavelength first, then polarisation, μ and φ
 // from the stack's emission into the glass, and the ray starts in the substrate going up; at the bottom face the
 // stack reflects with its own r_s, r_p or absorbs (stackAbsorbed), as steps.ts stackStep.
@@ -21,7 +23,13 @@ import { createRngState, fillUniforms, seedRay } from './rng'
 import { capHitTo, HEX_ROW_FACTOR } from './geometry'
 import { measuredCapHit, measuredCapNormal, setMeasuredCap } from './measured-cap'
 import { AIR_ESCAPE, AIR_LAND, AIR_LOST, airHit, airSearch, setAirSearchMeasured } from './air-search'
-import { fresnelReflects, linearPolarizationIn, metalReflectIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn, stackReflectsIn } from './crossings'
+import {
+  fresnelReflects, linearPolarizationIn, metalReflectIn, metalReflectNormalIn, pin, polarizedReflectsIn, polarizedTirIn, randomPolarizationIn, stackReflectsIn,
+} from './crossings'
+import {
+  EDGE_ABSORBING, EDGE_GROUND, EDGE_MIRRORED, END_EDGE, P_EDGE_KIND, P_EMIT_HEIGHT_UM, P_EMIT_WIDTH_UM, P_HALF_HEIGHT_UM, P_HALF_WIDTH_UM, panelBlockOf,
+  panelEdgeHit, scoreSpot,
+} from './panel'
 import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
 import { wrapToSite } from './lattice'
 import { SP_AL, SP_AS, SP_CDF, SP_GUIDE, SP_NE, SP_NL, SP_NODES, SP_NS, SP_STRIDE, SPECTRAL_GRID } from './spectral'
@@ -31,10 +39,10 @@ import {
   FRESNEL_NONE, FRESNEL_POLARIZED, LATTICE_SQUARE, PROFILE_ISOTROPIC, PROFILE_LAMBERTIAN, S_ABSORPTION_PER_UM, S_CURVATURE_PER_UM,
   S_DIFFUSE_FRACTION, S_FRESNEL, S_HAS_LENS, S_K1, S_LATTICE, S_LENS_RADIUS_UM, S_MAX_EVENTS, S_N_EMITTER, S_N_LENS,
   S_N_SUBSTRATE, S_LENS_ABSORPTION_PER_UM, S_SPECTRAL_OFFSET, S_PITCH_UM, S_PROFILE, S_REFLECTANCE, S_SAG_UM, S_SOURCE, S_SOURCE_A_UM, S_SOURCE_B_UM, S_TABLE,
-  S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
+  S_PANEL_OFFSET, S_THICKNESS_UM, S_THINFILM_OFFSET, SOURCE_DISC, SOURCE_EXTENDED, type PackedScene,
 } from './scene'
 import {
-  COLOUR_AXIS_ROW, COLOUR_BINS, COLOUR_BINS_PER_NM, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, T_COLOUR,
+  COLOUR_AXIS_ROW, COLOUR_BINS, COLOUR_BINS_PER_NM, COLOUR_FIRST_EDGE_NM, COLOUR_IN_RANGE_BINS, COLOUR_LAUNCH_ROW, hasColour, hasPanel, PT_EDGE, T_COLOUR,
   PHI_BINS, PIXEL_AXIS_BINS, T_EVENTS, T_STACK_ABSORBED, T_PIXEL_AXIS, T_PIXEL_EXTRACTED, T_PIXEL_RAYS, T_EXTRACTED, T_MAP, T_RAYS, T_REFLECTOR, T_SUBSTRATE, T_THETA, T_TRAPPED, T_UNRESOLVED,
   T_WAVEGUIDED, THETA_BINS, type Tally,
 } from './tally'
@@ -63,6 +71,8 @@ const hit = new Float64Array(3)
 const pol = new Float64Array(6)
 // The thin-film stack's r_s, r_p at the ray's angle (thinfilm/source.ts stackCoefficients).
 const rc = new Float64Array(4)
+// A finite panel's edge hit (panel.ts panelEdgeHit: path parameter, which edge).
+const eh = new Float64Array(2)
 
 /**
  * Traces rays [firstRay, firstRay + rayCount) of stream `streamId` into `tally` (counts are added). Returns the
@@ -100,12 +110,20 @@ export function traceRange(
   const noFresnel = scene[S_FRESNEL]! === FRESNEL_NONE
   const polar = scene[S_FRESNEL]! === FRESNEL_POLARIZED
   const maxEvents = scene[S_MAX_EVENTS]!
-  const specular = fd === 0 || rb === 0
-  // Lateral positions matter with a lens array (which cap) and for a finite pixel (the footprint tally).
-  const trackPos = hasLens || source !== SOURCE_EXTENDED
+  // A finite panel (panel.ts): its half-sizes and emitting size (µm), edge kind; 0 offset for the infinite array.
+  const pa = scene[S_PANEL_OFFSET]!
+  if (pa > 0 && !hasPanel(tally)) throw new Error('a finite panel scene needs a tally with the panel block: createTally(colour, true)')
+  const hw = pa > 0 ? scene[pa + P_HALF_WIDTH_UM]! : Infinity, hh = pa > 0 ? scene[pa + P_HALF_HEIGHT_UM]! : Infinity
+  const emW = pa > 0 ? scene[pa + P_EMIT_WIDTH_UM]! : 0, emH = pa > 0 ? scene[pa + P_EMIT_HEIGHT_UM]! : 0
+  const edgeKind = pa > 0 ? scene[pa + P_EDGE_KIND]! : EDGE_ABSORBING
+  const pb = pa > 0 ? panelBlockOf(tally) : 0
+  // a totally reflected planar ray can never escape: the infinite array, or a panel whose mirrored edges keep n·sinθ
+  const specular = (fd === 0 || rb === 0) && (pa === 0 || edgeKind === EDGE_MIRRORED)
+  // Lateral positions matter with a lens array (which cap), for a finite pixel (the footprint tally) and a panel (edges, spot).
+  const trackPos = hasLens || source !== SOURCE_EXTENDED || pa > 0
   const row2Um = 2 * pitch * HEX_ROW_FACTOR // p√3
 
-  let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nStack = 0, nEvents = 0
+  let nExt = 0, nRefl = 0, nSub = 0, nWg = 0, nTrap = 0, nUnres = 0, nStack = 0, nEdge = 0, nEvents = 0
   let done = 0
   for (; done < rayCount; done++) {
     if ((done & 4095) === 4095 && shouldStop !== undefined && shouldStop()) break
@@ -114,7 +132,8 @@ export function traceRange(
 
     // launch: position (always drawn, so streams line up between variants), then direction
     const up1 = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), up2 = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
-    if (source === SOURCE_EXTENDED) sampleCell(hex, pitch, up1, up2, v3)
+    if (pa > 0) sampleRectangle(emW, emH, up1, up2, v3) // a panel: uniform over its emitting area
+    else if (source === SOURCE_EXTENDED) sampleCell(hex, pitch, up1, up2, v3)
     else if (source === SOURCE_DISC) sampleDisc(srcA, up1, up2, v3)
     else sampleRectangle(srcA, srcB, up1, up2, v3)
     let x = v3[0]!, y = v3[1]!, z = 0
@@ -196,8 +215,49 @@ export function traceRange(
           break
         }
         case MED_SUBSTRATE: {
-          // always face to face: z is 0 or t on entry
-          const pathUm = dz > 0 ? tUm / dz : -tUm / dz
+          // face to face (z is 0 or t on entry), except on a finite panel after an edge event (steps.ts panelSubstrateStep)
+          let pathUm
+          if (pa > 0) {
+            pathUm = dz > 0 ? (tUm - z) / dz : dz < 0 ? -z / dz : Infinity
+            panelEdgeHit(x + ox, y + oy, dx, dy, hw, hh, eh)
+            const sE = eh[0]!
+            if (sE < pathUm) {
+              if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * sE) { end = T_SUBSTRATE; break }
+              x += dx * sE; y += dy * sE; z += dz * sE
+              const xEdge = eh[1] === 1
+              if (xEdge) x = (dx > 0 ? hw : -hw) - ox
+              else y = (dy > 0 ? hh : -hh) - oy
+              // the edge (steps.ts edgeStep)
+              if (edgeKind === EDGE_ABSORBING) { end = END_EDGE; break }
+              const nx = xEdge ? (dx > 0 ? 1 : -1) : 0, ny = xEdge ? 0 : (dy > 0 ? 1 : -1)
+              if (edgeKind === EDGE_MIRRORED) {
+                const cosI = xEdge ? dx * nx : dy * ny
+                if (polar) { pin[0] = dx; pin[1] = dy; pin[2] = dz; pin[3] = nx; pin[4] = ny; pin[5] = 0; pin[6] = cosI; metalReflectNormalIn(pol) }
+                if (xEdge) dx -= 2 * cosI * nx
+                else dy -= 2 * cosI * ny
+                break
+              }
+              if (edgeKind === EDGE_GROUND) {
+                sampleLambertian((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), v3)
+                if (xEdge) { dx = -nx * v3[2]!; dy = v3[0]!; dz = v3[1]! } else { dx = v3[0]!; dy = -ny * v3[2]!; dz = v3[1]! }
+                if (polar) { pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)); pin[0] = dx; pin[1] = dy; pin[2] = dz; randomPolarizationIn(pol) }
+                break
+              }
+              // polished: glass → air through the edge (crossings.ts curvedCrossing, normal (nx, ny, 0))
+              const nz = 0
+              const cosI = dx * nx + dy * ny + dz * nz
+              const eta = nS / 1
+              const sin2T = eta * eta * (1 - cosI * cosI)
+              if (sin2T >= 1
+                ? (!polar || (pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = nx, pin[4] = ny, pin[5] = nz, pin[6] = cosI, pin[7] = sin2T, pin[8] = nS, pin[9] = 1, polarizedTirIn(pol)))
+                : (!noFresnel && (polar ? (pin[10] = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), pin[0] = dx, pin[1] = dy, pin[2] = dz, pin[3] = nx, pin[4] = ny, pin[5] = nz, pin[6] = cosI, pin[7] = Math.sqrt(1 - sin2T), pin[8] = nS, pin[9] = 1, polarizedReflectsIn(pol)) : fresnelReflects((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), cosI, Math.sqrt(1 - sin2T), nS, 1)))) {
+                dx -= 2 * cosI * nx; dy -= 2 * cosI * ny; dz -= 2 * cosI * nz
+                break
+              }
+              end = END_EDGE // left through the edge
+              break
+            }
+          } else pathUm = dz > 0 ? tUm / dz : -tUm / dz
           if (alpha > 0 && -Math.log((ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))) < alpha * pathUm) { end = T_SUBSTRATE; break }
           if (dz < 0) {
             // bottom face: substrate → emitter layer (then the reflector)
@@ -374,8 +434,10 @@ export function traceRange(
           }
         }
         tally[T_MAP + bt * PHI_BINS + bp] = tally[T_MAP + bt * PHI_BINS + bp]! + 1
+        if (pa > 0) scoreSpot(tally, pb, scene, pa, x + ox, y + oy, dz, bt) // the panel's detector
         break
       }
+      case END_EDGE: nEdge++; break
       case T_REFLECTOR: nRefl++; break
       case T_SUBSTRATE: nSub++; break
       case T_WAVEGUIDED: nWg++; break
@@ -402,6 +464,7 @@ export function traceRange(
   tally[T_UNRESOLVED] = tally[T_UNRESOLVED]! + nUnres
   tally[T_EVENTS] = tally[T_EVENTS]! + nEvents
   tally[T_STACK_ABSORBED] = tally[T_STACK_ABSORBED]! + nStack
+  if (pa > 0) tally[pb + PT_EDGE] = tally[pb + PT_EDGE]! + nEdge
   if (source !== SOURCE_EXTENDED) tally[T_PIXEL_RAYS] = tally[T_PIXEL_RAYS]! + done
   return done
 }

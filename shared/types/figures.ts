@@ -29,6 +29,11 @@ export const cellSummarySchema = z.object({
   /** Photopic on-axis luminance over the planar companion's (with `emitter.spectrum`). */
   photopicOnAxisGain: z.number().nullable().optional(),
   photopicOnAxisGainStdErr: z.number().nullable().optional(),
+  /** Finite panel: the detector's reading over the flat device's (same panel, same detector), and the edge share. */
+  measuredGain: z.number().nullable().optional(),
+  measuredGainStdErr: z.number().nullable().optional(),
+  edgeLoss: z.number().nullable().optional(),
+  edgeLossStdErr: z.number().nullable().optional(),
   losses: z.record(z.string(), z.number()),
   lossesStdErr: z.record(z.string(), z.number()),
 })
@@ -53,6 +58,10 @@ export function cellSummaryOf(r: TraceResult): CellSummary {
     ...(r.colour ? { maxDeltaUvTo60: r.colour.maxDeltaUvTo60, maxDeltaUvTo60StdErr: r.colour.maxDeltaUvTo60StdErr } : {}),
     ...(r.photopicOnAxisGain !== undefined && r.photopicOnAxisGain !== null
       ? { photopicOnAxisGain: r.photopicOnAxisGain, photopicOnAxisGainStdErr: r.photopicOnAxisGainStdErr ?? null } : {}),
+    // panel figures only for a finite panel, so summaries of infinite-array runs stay as they were
+    ...(r.panel ? {
+      measuredGain: r.panel.gain.value, measuredGainStdErr: r.panel.gain.stdErr, edgeLoss: r.panel.edge.value, edgeLossStdErr: r.panel.edge.stdErr,
+    } : {}),
     losses: r.losses,
     lossesStdErr: r.lossesStdErr,
   }
@@ -60,8 +69,8 @@ export function cellSummaryOf(r: TraceResult): CellSummary {
 
 export interface FigureValue { value: number; stdErr: number }
 
-/** What a design must have for a figure to exist: a finite (disc or rectangle) source, an emission spectrum. */
-export type FigureNeed = 'pixel-source' | 'spectrum'
+/** What a design must have for a figure to exist: a finite (disc or rectangle) source, an emission spectrum, a finite panel. */
+export type FigureNeed = 'pixel-source' | 'spectrum' | 'panel'
 
 export interface FigureDefinition {
   /** As the page names it ("Gain over the flat device"). */
@@ -104,6 +113,14 @@ export const FIGURES = {
     label: 'Photopic on-axis gain', phrase: 'photopic on-axis gain', unit: '×', better: 'higher', needs: 'spectrum',
     read: (s) => pair(s.photopicOnAxisGain, s.photopicOnAxisGainStdErr),
   },
+  measuredGain: {
+    label: 'Gain as measured on the panel', phrase: 'gain as measured on the panel', unit: '×', better: 'higher', needs: 'panel',
+    read: (s) => pair(s.measuredGain, s.measuredGainStdErr),
+  },
+  edgeLoss: {
+    label: 'Lost at the panel edges', phrase: 'light lost at the panel edges', unit: '%', better: 'lower', needs: 'panel',
+    read: (s) => pair(s.edgeLoss, s.edgeLossStdErr),
+  },
 } as const satisfies Record<string, FigureDefinition>
 
 export type Figure = keyof typeof FIGURES
@@ -127,13 +144,15 @@ export function figureBeats(figure: string, a: number, b: number): boolean {
 const NEED_MESSAGES: Record<FigureNeed, string> = {
   'pixel-source': 'needs a disc or rectangle source; this design emits over the whole panel',
   spectrum: 'needs an emission spectrum; this design emits at one wavelength without colour outputs',
+  panel: 'needs a finite panel (size, edges and a detector); this design is the infinite array',
 }
 
 /** Null when the design produces the figure, else why not (in the trade's words, for a 400 and the form). */
-export function figureUnavailable(figure: string, scenario: Pick<Scenario, 'emitter'>): string | null {
+export function figureUnavailable(figure: string, scenario: Pick<Scenario, 'emitter'> & { panel?: unknown }): string | null {
   const def = figureDefinition(figure)
   if (def.needs === 'pixel-source' && scenario.emitter.source.shape === 'extended') return `Ranking by ${def.phrase} ${NEED_MESSAGES['pixel-source']}`
   if (def.needs === 'spectrum' && !scenario.emitter.spectrum) return `Ranking by ${def.phrase} ${NEED_MESSAGES.spectrum}`
+  if (def.needs === 'panel' && scenario.panel == null) return `Ranking by ${def.phrase} ${NEED_MESSAGES.panel}`
   return null
 }
 

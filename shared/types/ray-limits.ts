@@ -14,14 +14,16 @@ export const MAX_RAYS_PER_CELL = 1_000_000_000
 export const DEFAULT_TEAM_RAY_LIMIT = 1_000_000_000
 
 /**
- * Traced rays per requested ray in one cell: 2 for a lens film over a pixel source or a sheet emitter with a
+ * Traced rays per requested ray in one cell: 2 for a lens film over a pixel source, on a finite panel, or a sheet emitter with a
  * spectrum (device + traced planar companion), else 1 (quadrature companion, or a flat stack). The engine's rule is the same
  * (shared/optics/run.ts tracesCompanion with the default quadrature companion).
  */
 export function tracedPerRay(
-  scenario: { lensArray?: unknown, emitter?: { source?: { shape?: string }, spectrum?: unknown, thinFilm?: unknown } } | null | undefined,
+  scenario: { lensArray?: unknown, panel?: unknown, emitter?: { source?: { shape?: string }, spectrum?: unknown, thinFilm?: unknown } } | null | undefined,
 ): 1 | 2 {
   if (!scenario?.lensArray) return 1
+  // a finite panel's flat companion is traced over the same panel and measured by the same detector
+  if (scenario.panel != null) return 2
   const e = scenario.emitter
   // a sheet emitter with a spectrum traces its companion too: the flat device's colour comes from its counts
   return e?.source?.shape !== 'extended' || (e.spectrum != null && e.thinFilm == null) ? 2 : 1

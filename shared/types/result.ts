@@ -16,6 +16,11 @@ export const lossesSchema = z.object({
    * that extraction and the losses sum to 1. thinFilm.modes splits it.
    */
   stackAbsorbed: z.number().optional(),
+  /**
+   * Finite panel only: light in the glass that reached a substrate edge and ended there — absorbed by an absorbing
+   * edge, or left through a polished one (then panel.detector.includeEdges may count it as measured).
+   */
+  edge: z.number().optional(),
 })
 
 const perBand = z.array(z.number().nullable())
@@ -70,6 +75,54 @@ const modeSplitSchema = z.object({
   absorbed: z.number(),
   airStdErr: z.number().optional(),
   glassStdErr: z.number().optional(),
+})
+
+const valueWithErr = z.object({ value: z.number(), stdErr: z.number() })
+
+/**
+ * A finite panel (`scenario.panel`) only, else null or absent: what the run measured and how, for the device and its
+ * traced flat companion (same panel, same detector). `measured.unit` "%": a fraction of the launched light (sphere);
+ * "× Lamb.": luminance over that of a Lambertian emitter of the launched flux spread over the emitting area.
+ */
+export const panelResultSchema = z.object({
+  widthMm: z.number(),
+  heightMm: z.number(),
+  emittingWidthMm: z.number(),
+  emittingHeightMm: z.number(),
+  edges: z.enum(['absorbing', 'mirrored', 'ground', 'polished']),
+  detector: z.object({
+    kind: z.enum(['sphere', 'goniometer', 'luminanceMeter']),
+    includeEdges: z.boolean().optional(),
+    spotCentreMm: z.tuple([z.number(), z.number()]).optional(),
+    spotDiameterMm: z.number().optional(),
+    /** Acceptance half-angle (deg): the meter's, or the on-axis cone of the goniometer's on-axis figure. */
+    acceptanceDeg: z.number(),
+  }),
+  /** One sentence: what this run measured. */
+  measures: z.string(),
+  measured: z.object({ value: z.number(), stdErr: z.number(), unit: z.enum(['%', '× Lamb.']) }),
+  planarMeasured: valueWithErr,
+  /** measured over planarMeasured, σ as for `enhancement` (independent streams); null while the flat device reads 0. */
+  gain: z.object({ value: z.number().nullable(), stdErr: z.number().nullable() }),
+  /** Fraction of launched rays that ended at an edge (losses.edge), device and companion. */
+  edge: valueWithErr,
+  planarEdge: valueWithErr,
+  /**
+   * Goniometer and luminance meter: the spot (field stop) over the emitting area (π r²/(w·h)); the light leaving the
+   * front face inside the spot as a fraction of the launched light, and by 1° polar bin as intensity (1/sr per
+   * launched ray) and luminance relative to a Lambertian of the launched flux over the emitting area.
+   */
+  spot: z.object({
+    areaFraction: z.number(),
+    extraction: z.number(),
+    extractionStdErr: z.number(),
+    perSteradian: z.array(z.number()),
+    perSteradianStdErr: z.array(z.number()),
+    luminanceRelative: z.array(z.number()),
+    luminanceRelativeStdErr: z.array(z.number()),
+    planarLuminanceRelative: z.array(z.number()),
+    planarLuminanceRelativeStdErr: z.array(z.number()),
+  }).nullable(),
 })
 
 /**
@@ -193,9 +246,12 @@ export const resultSchema = z.object({
   photopicOnAxisGainStdErr: z.number().nullable().optional(),
   /** Thin-film source only. */
   thinFilm: thinFilmResultSchema.nullable().optional(),
+  /** Finite panel only: the detector's reading (absent or null: the infinite array, all light into air per launched ray). */
+  panel: panelResultSchema.nullable().optional(),
 })
 
 export type TraceResult = z.infer<typeof resultSchema>
 export type ColourResult = z.infer<typeof colourSchema>
 export type ThinFilmResult = z.infer<typeof thinFilmResultSchema>
 export type Losses = z.infer<typeof lossesSchema>
+export type PanelResult = z.infer<typeof panelResultSchema>

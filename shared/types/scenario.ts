@@ -244,6 +244,44 @@ export const lensArraySchema = z
     }
   })
 
+/**
+ * What happens to light in the glass that reaches a substrate edge: "absorbing" (a blackened or taped edge: absorbed),
+ * "mirrored" (a metallised edge: specular), "ground" (a ground edge: re-emitted Lambertian back into the glass),
+ * "polished" (bare polished glass into air: Fresnel and TIR decide, transmitted light leaves through the edge).
+ */
+export const panelEdgeSchema = z.enum(['absorbing', 'mirrored', 'ground', 'polished'])
+
+const spotCentreMm = z.tuple([z.number().min(-1e4).max(1e4), z.number().min(-1e4).max(1e4)]).default([0, 0])
+
+/**
+ * What the run measures on a finite panel. "sphere": an integrating sphere collecting all light from the front face
+ * (and, with includeEdges, what leaves through polished edges). "goniometer": intensity over angle of the light leaving
+ * the front face inside a field stop (a spot: centre, diameter). "luminanceMeter": luminance of a spot within an
+ * acceptance half-angle about the panel normal.
+ */
+export const detectorSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('sphere'), includeEdges: z.boolean().default(false) }).strict(),
+  z.object({ kind: z.literal('goniometer'), spotCentreMm, spotDiameterMm: z.number().positive().max(1e4) }).strict(),
+  z.object({
+    kind: z.literal('luminanceMeter'), spotCentreMm, spotDiameterMm: z.number().positive().max(1e4),
+    acceptanceDeg: z.number().positive().max(30),
+  }).strict(),
+])
+
+const panelMm = z.number().positive().max(2000)
+
+/**
+ * A finite panel (absent: the infinite array). Centred on the origin; the emitting area is a centred rectangle
+ * (absent: the whole panel). The glass (substrate) ends at the panel's outline in edges of one kind.
+ */
+export const panelSchema = z.object({
+  widthMm: panelMm,
+  heightMm: panelMm,
+  emitting: z.object({ widthMm: panelMm, heightMm: panelMm }).strict().optional(),
+  edges: panelEdgeSchema.default('absorbing'),
+  detector: detectorSchema.default({ kind: 'sphere', includeEdges: false }),
+}).strict()
+
 export const fresnelModeSchema = z.enum(['averaged', 'none', 'polarized'])
 
 export const traceSchema = z.object({
@@ -270,6 +308,8 @@ export const scenarioSchema = z
     reflector: reflectorSchema.optional(),
     substrate: substrateSchema,
     lensArray: lensArraySchema.nullable(),
+    /** A finite panel with its edges and the detector that measures it; absent: the infinite array. */
+    panel: panelSchema.optional(),
     trace: traceSchema.default({ rays: 1_000_000, seed: 1, fresnel: 'averaged', maxEvents: 10_000 }),
   })
   .superRefine((s, ctx) => {
@@ -284,6 +324,10 @@ export const scenarioSchema = z
     }
     if (s.emitter.thinFilm === undefined && s.emitter.index === undefined) {
       ctx.addIssue({ code: 'custom', path: ['emitter', 'index'], message: 'is required for the sheet emitter (with a thin-film stack it comes from the emitting layer)' })
+    }
+    if (s.panel) checkPanel(s.panel, s.emitter.source.shape, ctx)
+    if (s.panel && s.emitter.thinFilm !== undefined) {
+      ctx.addIssue({ code: 'custom', path: ['panel'], message: 'cannot be combined with a thin-film stack yet: the stack\'s exact flat companion is the infinite one (trace the panel with the sheet emitter)' })
     }
     const range = spectrumRangeNm(s.emitter.spectrum)
     const tf = s.emitter.thinFilm
@@ -312,6 +356,28 @@ export const scenarioSchema = z
     }
   })
 
+function checkPanel(p: z.infer<typeof panelSchema>, sourceShape: string, ctx: z.RefinementCtx): void {
+  if (sourceShape !== 'extended') {
+    ctx.addIssue({ code: 'custom', path: ['emitter', 'source'], message: 'must be extended on a finite panel: the panel\'s emitting area is the source' })
+  }
+  if (p.emitting && p.emitting.widthMm > p.widthMm) {
+    ctx.addIssue({ code: 'custom', path: ['panel', 'emitting', 'widthMm'], message: `must be at most the panel width ${p.widthMm} mm: got ${p.emitting.widthMm} mm` })
+  }
+  if (p.emitting && p.emitting.heightMm > p.heightMm) {
+    ctx.addIssue({ code: 'custom', path: ['panel', 'emitting', 'heightMm'], message: `must be at most the panel height ${p.heightMm} mm: got ${p.emitting.heightMm} mm` })
+  }
+  const d = p.detector
+  if (d.kind !== 'sphere') {
+    const [cx, cy] = d.spotCentreMm
+    if (Math.abs(cx) > p.widthMm / 2 || Math.abs(cy) > p.heightMm / 2) {
+      ctx.addIssue({ code: 'custom', path: ['panel', 'detector', 'spotCentreMm'], message: `must lie on the panel (|x| ≤ ${p.widthMm / 2} mm, |y| ≤ ${p.heightMm / 2} mm): got (${cx}, ${cy}) mm` })
+    }
+  }
+  if (d.kind === 'sphere' && d.includeEdges && p.edges !== 'polished') {
+    ctx.addIssue({ code: 'custom', path: ['panel', 'detector', 'includeEdges'], message: `needs polished edges: no light leaves through ${p.edges} edges` })
+  }
+}
+
 /** A validated scenario with every default filled in (lensArray.index always set when there is an array). */
 export type Scenario = z.infer<typeof scenarioSchema>
 /** What a user may write (defaults optional). */
@@ -320,6 +386,9 @@ export type LensArray = NonNullable<Scenario['lensArray']>
 export type AngularProfile = Scenario['emitter']['angularProfile']
 export type Source = Scenario['emitter']['source']
 export type FresnelMode = z.infer<typeof fresnelModeSchema>
+export type Panel = z.infer<typeof panelSchema>
+export type Detector = z.infer<typeof detectorSchema>
+export type PanelEdge = z.infer<typeof panelEdgeSchema>
 
 function round4(x: number): number {
   return Number(x.toPrecision(4))
@@ -369,6 +438,18 @@ const FIELD_WORDS: Record<string, [string, string]> = {
   'lensArray.conicConstant': ['Conic constant k', ''],
   'lensArray.profile': ['Measured profile', ''],
   'lensArray.index': ['Lens index', ''],
+  'panel': ['Finite panel', ''],
+  'panel.widthMm': ['Panel width', 'mm'],
+  'panel.heightMm': ['Panel height', 'mm'],
+  'panel.emitting.widthMm': ['Emitting width', 'mm'],
+  'panel.emitting.heightMm': ['Emitting height', 'mm'],
+  'panel.edges': ['Glass edges', ''],
+  'panel.detector': ['Detector', ''],
+  'panel.detector.kind': ['Detector', ''],
+  'panel.detector.includeEdges': ['Sphere collects the edges', ''],
+  'panel.detector.spotCentreMm': ['Spot centre', 'mm'],
+  'panel.detector.spotDiameterMm': ['Spot diameter', 'mm'],
+  'panel.detector.acceptanceDeg': ['Acceptance half-angle', '°'],
   'trace.rays': ['Rays', ''],
   'trace.seed': ['Seed', ''],
   'trace.fresnel': ['Fresnel mode', ''],

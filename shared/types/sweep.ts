@@ -41,6 +41,8 @@ const NAMED_AXES = {
   'lensArray.radiusOfCurvatureUm': { label: 'Radius of curvature', unit: 'µm' },
   /** Derived: sets the diameter at the cell's pitch. */
   'lensArray.fillFactor': { label: 'Fill factor', unit: '' },
+  'panel.widthMm': { label: 'Panel width', unit: 'mm' },
+  'panel.heightMm': { label: 'Panel height', unit: 'mm' },
 } as const
 
 /** Sweepable parameters: a scenario path (or a derived lens quantity), its label and unit for the UI. */
@@ -173,6 +175,9 @@ export function axisProblems(base: Scenario, axes: SweepAxis[]): string[] {
     }
     if ((a.parameter === 'emitter.source.widthUm' || a.parameter === 'emitter.source.heightUm') && src.shape !== 'rectangle') {
       problems.push(`axes[${i}].parameter ${a.parameter} needs a rectangle source, but the design's source is ${src.shape}`)
+    }
+    if (a.parameter.startsWith('panel.') && base.panel === undefined) {
+      problems.push(`axes[${i}].parameter ${a.parameter} needs a finite panel, but the design is the infinite array`)
     }
     const tf = base.emitter.thinFilm
     if (a.parameter.startsWith('emitter.thinFilm.') && tf === undefined) {

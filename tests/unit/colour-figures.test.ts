@@ -17,7 +17,7 @@ describe('colour figures for sweeps', () => {
   it('are valid figures; the colour shift is the one ranked lowest-first; both need a spectrum', () => {
     expect(figureSchema.parse('maxDeltaUvTo60')).toBe('maxDeltaUvTo60')
     expect(figureSchema.parse('photopicOnAxisGain')).toBe('photopicOnAxisGain')
-    expect(FIGURE_KEYS.filter((k) => FIGURES[k].better === 'lower')).toEqual(['maxDeltaUvTo60'])
+    expect(FIGURE_KEYS.filter((k) => FIGURES[k].better === 'lower')).toEqual(['maxDeltaUvTo60', 'edgeLoss'])
     expect(FIGURE_KEYS.filter((k) => (FIGURES[k] as { needs?: string }).needs === 'spectrum').sort()).toEqual(['maxDeltaUvTo60', 'photopicOnAxisGain'])
   })
   it('the cell summary carries them with σ (a spectral run) and null without a spectrum', () => {

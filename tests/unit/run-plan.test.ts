@@ -179,7 +179,7 @@ describe('figures', () => {
   it('every figure reads a value with its σ from a summary that has it, and null from one that does not', () => {
     const full = summary({
       pixelOnAxisGain: 0.45, pixelOnAxisGainStdErr: 0.01, maxDeltaUvTo60: 0.004, maxDeltaUvTo60StdErr: 0.0005,
-      photopicOnAxisGain: 1.1, photopicOnAxisGainStdErr: 0.03,
+      photopicOnAxisGain: 1.1, photopicOnAxisGainStdErr: 0.03, measuredGain: 1.15, measuredGainStdErr: 0.02, edgeLoss: 0.04, edgeLossStdErr: 0.001,
     })
     for (const k of FIGURE_KEYS) {
       const f = figureOf(full, k)
@@ -187,6 +187,7 @@ describe('figures', () => {
       expect(f!.stdErr, k).toBeGreaterThan(0)
     }
     expect(figureOf(summary({}), 'pixelOnAxisGain')).toBeNull()
+    expect(figureOf(summary({}), 'edgeLoss')).toBeNull()
     expect(figureOf(summary({ maxDeltaUvTo60: null }), 'maxDeltaUvTo60')).toBeNull()
     expect(figureOf(null, 'enhancement')).toBeNull()
   })
@@ -222,5 +223,7 @@ describe('figures', () => {
     expect(figureUnavailable('enhancement', base)).toBeNull()
     expect(figureUnavailable('pixelOnAxisGain', { emitter: { ...base.emitter, source: { shape: 'disc', radiusUm: 50 } } })).toBeNull()
     expect(figureUnavailable('photopicOnAxisGain', base)).toMatch(/needs an emission spectrum/)
+    expect(figureUnavailable('measuredGain', base)).toMatch(/needs a finite panel/)
+    expect(figureUnavailable('edgeLoss', { ...base, panel: { widthMm: 10, heightMm: 10 } })).toBeNull()
   })
 })

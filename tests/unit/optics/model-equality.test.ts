@@ -4,7 +4,8 @@
 // lattice and an event limit that bites). A physics change made in one and not the other fails here.
 import { describe, expect, it, vi } from 'vitest'
 import {
-  COLOUR_BINS, COLOUR_LAUNCH_ROW, createTally, packScene, S_SPECTRAL_OFFSET, traceRange, traceRangeModel, T_COLOUR, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED,
+  COLOUR_BINS, COLOUR_LAUNCH_ROW, createTally, packScene, panelBlockOf, PT_EDGE, PT_SPOT, S_PANEL_OFFSET, S_SPECTRAL_OFFSET,
+  traceRange, traceRangeModel, T_COLOUR, T_EXTRACTED, T_MAP, T_RAYS, T_UNRESOLVED,
   THETA_BINS, PHI_BINS,
 } from '../../../shared/optics'
 import { scenarioSchema, type ScenarioInput } from '../../../shared/types/scenario'
@@ -65,6 +66,15 @@ const cases: Record<string, ScenarioInput> = {
   'hex hemispheres, Cauchy lens with strong B, broad Gaussian, averaged, disc pixel': { ...stack, emitter: { ...stack.emitter, source: { shape: 'disc', radiusUm: 20 }, spectrum: { peakNm: 560, fwhmNm: 150 } }, lensArray: { ...hemi, index: { cauchy: { A: 1.5, B: 0.03 } } } },
   'planar, Gaussian reaching past 780 nm, Lambertian, no Fresnel': { ...stack, emitter: { ...stack.emitter, angularProfile: 'lambertian', spectrum: { peakNm: 700, fwhmNm: 80 } }, trace: { fresnel: 'none' }, lensArray: null },
   'equal indices everywhere, ideal mirror': { emitter: { index: 1.5, angularProfile: 'isotropic', source: { shape: 'extended' } }, reflector: { reflectance: 1, diffuseFraction: 0 }, substrate: { index: 1.5, thicknessUm: 20, absorptionPerMm: 0 }, lensArray: { lattice: 'square', pitchUm: 10, diameterUm: 10, sagUm: 5, shape: 'spherical' } },
+  // finite panels (shared/optics/panel.ts): every edge kind, every detector, each Fresnel mode, lenses or none
+  'panel 2 × 1.5 mm, planar, absorbing edges, absorbing glass, sphere': { ...stack, substrate: { index: 1.5, thicknessUm: 700, absorptionPerMm: 0.1 }, lensArray: null, panel: { widthMm: 2, heightMm: 1.5, edges: 'absorbing' } },
+  'panel 2 mm, planar, mirrored edges, polarized, specular (trapped)': { ...stack, substrate: { index: 1.5, thicknessUm: 700, absorptionPerMm: 0.2 }, trace: { fresnel: 'polarized' }, lensArray: null, panel: { widthMm: 2, heightMm: 2, edges: 'mirrored' } },
+  'panel 3 × 2 mm, planar, ground edges, diffuse mirror, goniometer spot': { ...stack, reflector: { reflectance: 0.9, diffuseFraction: 0.4 }, substrate: { index: 1.5, thicknessUm: 700, absorptionPerMm: 0 }, lensArray: null, panel: { widthMm: 3, heightMm: 2, emitting: { widthMm: 2, heightMm: 1 }, edges: 'ground', detector: { kind: 'goniometer', spotCentreMm: [0.2, 0], spotDiameterMm: 1 } } },
+  'panel 2 mm, hex hemispheres, polished edges, luminance meter': { ...stack, substrate: { index: 1.5, thicknessUm: 500, absorptionPerMm: 0 }, lensArray: hemi, panel: { widthMm: 2, heightMm: 2, emitting: { widthMm: 1, heightMm: 1 }, edges: 'polished', detector: { kind: 'luminanceMeter', spotCentreMm: [0, 0], spotDiameterMm: 0.8, acceptanceDeg: 10 } } },
+  'panel 0.6 mm, hex hemispheres, polished edges, polarized, sphere with edges': { ...stack, substrate: { index: 1.5, thicknessUm: 300, absorptionPerMm: 0 }, trace: { fresnel: 'polarized' }, lensArray: hemi, panel: { widthMm: 0.6, heightMm: 0.6, edges: 'polished', detector: { kind: 'sphere', includeEdges: true } } },
+  'panel 1 mm, square parabolic, ground edges, polarized, Gaussian spectrum': { ...stack, emitter: { ...stack.emitter, spectrum: { peakNm: 530, fwhmNm: 40 } }, substrate: { index: bk7, thicknessUm: 400, absorptionPerMm: 0 }, trace: { fresnel: 'polarized' }, lensArray: { lattice: 'square', pitchUm: 20, diameterUm: 18, sagUm: 6, shape: 'parabolic' }, panel: { widthMm: 1, heightMm: 1, edges: 'ground' } },
+  'panel 1 mm, planar, polished edges, no Fresnel, mirrored-free diffuse mirror': { ...stack, reflector: { reflectance: 0.95, diffuseFraction: 0.2 }, substrate: { index: 1.5, thicknessUm: 300, absorptionPerMm: 0 }, trace: { fresnel: 'none' }, lensArray: null, panel: { widthMm: 1, heightMm: 1.2, edges: 'polished' } },
+  'panel 1.5 mm, hex measured cap, mirrored edges, polarized, goniometer': { ...stack, substrate: { index: 1.5, thicknessUm: 400, absorptionPerMm: 0.5 }, trace: { fresnel: 'polarized' }, lensArray: { ...hemi, sagUm: 3, shape: 'measured', profile: sampledSphere(5, 3) }, panel: { widthMm: 1.5, heightMm: 1.5, edges: 'mirrored', detector: { kind: 'goniometer', spotCentreMm: [0, 0.3], spotDiameterMm: 0.5 } } },
 }
 
 // the spectral thin-film cases tabulate their stack over ~50 wavelength nodes first (~0.5 s quiet, more when the
@@ -85,8 +95,9 @@ describe('readable model = fused loop, bit for bit (seeds 41 and 42, streams 0 a
       const scene = packScene(sc)
       // a scene with a spectrum fills the colour block too (every slot of it compared)
       const colour = scene[S_SPECTRAL_OFFSET]! > 0
+      const panel = scene[S_PANEL_OFFSET]! > 0
       for (const [seed, stream] of [[41, 0], [42, 1]] as const) {
-        const fused = createTally(colour), model = createTally(colour)
+        const fused = createTally(colour, panel), model = createTally(colour, panel)
         traceRange(scene, 1000, 2500, seed, fused, undefined, stream)
         traceRangeModel(scene, 1000, 2500, seed, model, stream)
         expect(firstDifference(fused, model)).toBe('none')
@@ -104,6 +115,12 @@ describe('readable model = fused loop, bit for bit (seeds 41 and 42, streams 0 a
         let mapped = 0
         for (let i = 0; i < THETA_BINS * PHI_BINS; i++) mapped += fused[T_MAP + i]!
         expect(mapped).toBe(fused[T_EXTRACTED])
+        if (panel) {
+          // the panel cases do meet their edges, and the spot sees part of the light (not none)
+          const pb = panelBlockOf(fused)
+          if (!name.includes('mirrored') && !name.includes('ground')) expect(fused[pb + PT_EDGE]!).toBeGreaterThan(20)
+          expect(fused[pb + PT_SPOT]!).toBeGreaterThan(20)
+        }
       }
     })
   }
