@@ -160,21 +160,6 @@ function project(f: Float64Array, kx: number, ky: number, kz: number, nx: number
   pj[8] = f[0]! * px + f[2]! * py + f[4]! * pz; pj[9] = f[1]! * px + f[3]! * py + f[5]! * pz
 }
 
-/**
- * Writes f = (A·s + B·(s × q))/√(|A|² + |B|²), with A = (aRe, aIm), B = (bRe, bIm) and q the outgoing wave's unit
- * direction (s from pj).
- */
-function compose(f: Float64Array, aRe: number, aIm: number, bRe: number, bIm: number, qx: number, qy: number, qz: number): void {
-  const sx = pj[0]!, sy = pj[1]!, sz = pj[2]!
-  // s ⊥ q, both unit: p = s × q is unit to rounding (no renormalisation of p needed)
-  const px = sy * qz - sz * qy, py = sz * qx - sx * qz, pz = sx * qy - sy * qx
-  const im = 1 / Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
-  aRe *= im; aIm *= im; bRe *= im; bIm *= im
-  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
-  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
-  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
-}
-
 /** Power reflectance |rs|²|Es|² + |rp|²|Ep|² of field f on ray k (no TIR; cosT ≥ 0). */
 export function polarizedReflectance(f: Float64Array, kx: number, ky: number, kz: number, nx: number, ny: number, nz: number,
   cosI: number, cosT: number, n1: number, n2: number): number {
@@ -203,23 +188,54 @@ export function polarizedReflects(f: Float64Array, u: number, kx: number, ky: nu
  */
 export const pin = new Float64Array(11)
 
-/** polarizedReflects with its inputs in pin. */
+/**
+ * polarizedReflects with its inputs in pin. The projection (s, p, Es, Ep) and the composition of the outgoing
+ * field are written out here rather than called (project/compose above do the same for polarizedReflectance): V8
+ * declined to inline them into this function once it was itself inlined into the fused loop. The outgoing field's
+ * norm √(|A|² + |B|²) is √R for the reflected wave (R, the decision's probability) and √(ts²|Es|² + tp²|Ep|²) for
+ * the transmitted one.
+ */
 export function polarizedReflectsIn(f: Float64Array): boolean {
   const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
   const cosI = pin[6]!, cosT = pin[7]!, n1 = pin[8]!, n2 = pin[9]!
-  project(f, kx, ky, kz, nx, ny, nz)
-  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
-  const rs = (a - b) / (a + b), rp = (c - d) / (c + d)
-  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
-  if (pin[10]! < rs * rs * (esRe * esRe + esIm * esIm) + rp * rp * (epRe * epRe + epIm * epIm)) {
-    const g = 2 * cosI
-    compose(f, rs * esRe, rs * esIm, rp * epRe, rp * epIm, kx - g * nx, ky - g * ny, kz - g * nz)
-    return true
+  // s = normalize(k × n), p = s × k (as project)
+  let sx = ky * nz - kz * ny, sy = kz * nx - kx * nz, sz = kx * ny - ky * nx
+  let len = Math.sqrt(sx * sx + sy * sy + sz * sz)
+  if (len < 1e-12) {
+    if (kz < 0.9 && kz > -0.9) { sx = -ky; sy = kx; sz = 0 } else { sx = 0; sy = -kz; sz = ky }
+    len = Math.sqrt(sx * sx + sy * sy + sz * sz)
   }
-  const ts = (2 * a) / (a + b), tp = (2 * a) / (c + d)
-  const eta = n1 / n2, h = cosT - eta * cosI
-  compose(f, ts * esRe, ts * esIm, tp * epRe, tp * epIm, eta * kx + h * nx, eta * ky + h * ny, eta * kz + h * nz)
-  return false
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
+  let px = sy * kz - sz * ky, py = sz * kx - sx * kz, pz = sx * ky - sy * kx
+  const f0 = f[0]!, f1 = f[1]!, f2 = f[2]!, f3 = f[3]!, f4 = f[4]!, f5 = f[5]!
+  const esRe = f0 * sx + f2 * sy + f4 * sz, esIm = f1 * sx + f3 * sy + f5 * sz
+  const epRe = f0 * px + f2 * py + f4 * pz, epIm = f1 * px + f3 * py + f5 * pz
+  const a = n1 * cosI, b = n2 * cosT, c = n2 * cosI, d = n1 * cosT
+  const es2 = esRe * esRe + esIm * esIm, ep2 = epRe * epRe + epIm * epIm
+  let A: number, B: number, qx: number, qy: number, qz: number
+  const rs = (a - b) / (a + b), rp = (c - d) / (c + d)
+  const R = rs * rs * es2 + rp * rp * ep2
+  const reflected = pin[10]! < R
+  if (reflected) {
+    const g = 2 * cosI
+    qx = kx - g * nx; qy = ky - g * ny; qz = kz - g * nz
+    const im = 1 / Math.sqrt(R)
+    A = rs * im; B = rp * im
+  } else {
+    const ts = (2 * a) / (a + b), tp = (2 * a) / (c + d)
+    const eta = n1 / n2, h = cosT - eta * cosI
+    qx = eta * kx + h * nx; qy = eta * ky + h * ny; qz = eta * kz + h * nz
+    const im = 1 / Math.sqrt(ts * ts * es2 + tp * tp * ep2)
+    A = ts * im; B = tp * im
+  }
+  // f = A·Es·s + B·Ep·(s × q) (s ⊥ q, both unit: s × q is unit to rounding, no renormalisation of it needed)
+  px = sy * qz - sz * qy; py = sz * qx - sx * qz; pz = sx * qy - sy * qx
+  const aRe = A * esRe, aIm = A * esIm, bRe = B * epRe, bIm = B * epIm
+  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
+  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
+  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
+  return reflected
 }
 
 /**
@@ -233,20 +249,38 @@ export function polarizedTir(f: Float64Array, kx: number, ky: number, kz: number
   return polarizedTirIn(f)
 }
 
-/** polarizedTir with its inputs in pin (pin[7] = sin²θT). */
+/** polarizedTir with its inputs in pin (pin[7] = sin²θT); projection and composition written out as in polarizedReflectsIn. */
 export function polarizedTirIn(f: Float64Array): boolean {
   const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!, nx = pin[3]!, ny = pin[4]!, nz = pin[5]!
   const cosI = pin[6]!, n1 = pin[8]!, n2 = pin[9]!
-  project(f, kx, ky, kz, nx, ny, nz)
+  let sx = ky * nz - kz * ny, sy = kz * nx - kx * nz, sz = kx * ny - ky * nx
+  let len = Math.sqrt(sx * sx + sy * sy + sz * sz)
+  if (len < 1e-12) {
+    if (kz < 0.9 && kz > -0.9) { sx = -ky; sy = kx; sz = 0 } else { sx = 0; sy = -kz; sz = ky }
+    len = Math.sqrt(sx * sx + sy * sy + sz * sz)
+  }
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
+  let px = sy * kz - sz * ky, py = sz * kx - sx * kz, pz = sx * ky - sy * kx
+  const f0 = f[0]!, f1 = f[1]!, f2 = f[2]!, f3 = f[3]!, f4 = f[4]!, f5 = f[5]!
+  const esRe = f0 * sx + f2 * sy + f4 * sz, esIm = f1 * sx + f3 * sy + f5 * sz
+  const epRe = f0 * px + f2 * py + f4 * pz, epIm = f1 * px + f3 * py + f5 * pz
   const kap = Math.sqrt(pin[7]! - 1)
   const a = n1 * cosI, b = n2 * kap, c = n2 * cosI, d = n1 * kap
   const ms = a * a + b * b, mp = c * c + d * d
   const rsRe = (a * a - b * b) / ms, rsIm = (-2 * a * b) / ms
   const rpRe = (c * c - d * d) / mp, rpIm = (-2 * c * d) / mp
-  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
+  let aRe = rsRe * esRe - rsIm * esIm, aIm = rsRe * esIm + rsIm * esRe
+  let bRe = rpRe * epRe - rpIm * epIm, bIm = rpRe * epIm + rpIm * epRe
   const g = 2 * cosI
-  compose(f, rsRe * esRe - rsIm * esIm, rsRe * esIm + rsIm * esRe, rpRe * epRe - rpIm * epIm, rpRe * epIm + rpIm * epRe,
-    kx - g * nx, ky - g * ny, kz - g * nz)
+  const qx = kx - g * nx, qy = ky - g * ny, qz = kz - g * nz
+  // |rs| = |rp| = 1: the norm is |Es|² + |Ep|² = 1 to rounding, renormalised so that rounding cannot accumulate
+  const im = 1 / Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
+  aRe *= im; aIm *= im; bRe *= im; bIm *= im
+  px = sy * qz - sz * qy; py = sz * qx - sx * qz; pz = sx * qy - sy * qx
+  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
+  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
+  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
   return true
 }
 
@@ -256,11 +290,13 @@ export function metalReflect(f: Float64Array, kx: number, ky: number, kz: number
   metalReflectIn(f)
 }
 
-/** metalReflect with k in pin[0..2]. */
+/**
+ * metalReflect with k in pin[0..2]. With s = normalize(k × n) horizontal for n = −z, p_r = s × k_r with
+ * k_r = (kx, ky, −kz): −Es·s + Ep·p_r = (−Ex, −Ey, Ez) (the tangential field reverses, the normal one stays: the
+ * perfect-conductor boundary condition), so no basis is needed; the norm is unchanged.
+ */
 export function metalReflectIn(f: Float64Array): void {
-  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
-  project(f, kx, ky, kz, 0, 0, -1)
-  compose(f, -pj[6]!, -pj[7]!, pj[8]!, pj[9]!, kx, ky, -kz)
+  f[0] = -f[0]!; f[1] = -f[1]!; f[2] = -f[2]!; f[3] = -f[3]!
 }
 
 /**
@@ -281,13 +317,32 @@ export function randomPolarization(f: Float64Array, u: number, kx: number, ky: n
   randomPolarizationIn(f)
 }
 
-/** randomPolarization with k in pin[0..2] and u in pin[10]. */
+/**
+ * The s and p directions of a ray k against z (s = normalize(k × z), p = s × k; as project with n = +z, where
+ * k × z = (ky, −kx, 0)) into lb[0..5].
+ */
+const lb = new Float64Array(6)
+function launchBasis(kx: number, ky: number, kz: number): void {
+  let sx = ky, sy = -kx, sz = 0
+  let len = Math.sqrt(sx * sx + sy * sy)
+  if (len < 1e-12) {
+    sx = 0; sy = -kz; sz = ky
+    len = Math.sqrt(sy * sy + sz * sz)
+  }
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
+  lb[0] = sx; lb[1] = sy; lb[2] = sz
+  lb[3] = sy * kz - sz * ky; lb[4] = sz * kx - sx * kz; lb[5] = sx * ky - sy * kx
+}
+
+/** randomPolarization with k in pin[0..2] and u in pin[10]: f = cos ψ·s + sin ψ·p, real (unit to rounding). */
 export function randomPolarizationIn(f: Float64Array): void {
-  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
-  f[0] = 0; f[1] = 0; f[2] = 0; f[3] = 0; f[4] = 0; f[5] = 0
-  project(f, kx, ky, kz, 0, 0, 1)
+  launchBasis(pin[0]!, pin[1]!, pin[2]!)
   const psi = 2 * Math.PI * pin[10]!
-  compose(f, Math.cos(psi), 0, Math.sin(psi), 0, kx, ky, kz)
+  const c = Math.cos(psi), sn = Math.sin(psi)
+  f[0] = c * lb[0]! + sn * lb[3]!; f[1] = 0
+  f[2] = c * lb[1]! + sn * lb[4]!; f[3] = 0
+  f[4] = c * lb[2]! + sn * lb[5]!; f[5] = 0
 }
 
 /**
@@ -295,11 +350,9 @@ export function randomPolarizationIn(f: Float64Array): void {
  * (pin[10] = 1; s × k), the two eigenstates the stack emits into the glass.
  */
 export function linearPolarizationIn(f: Float64Array): void {
-  const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
-  f[0] = 0; f[1] = 0; f[2] = 0; f[3] = 0; f[4] = 0; f[5] = 0
-  project(f, kx, ky, kz, 0, 0, 1)
-  const p = pin[10]!
-  compose(f, 1 - p, 0, p, 0, kx, ky, kz)
+  launchBasis(pin[0]!, pin[1]!, pin[2]!)
+  const o = pin[10]! === 0 ? 0 : 3
+  f[0] = lb[o]!; f[1] = 0; f[2] = lb[o + 1]!; f[3] = 0; f[4] = lb[o + 2]!; f[5] = 0
 }
 
 /**
@@ -311,10 +364,28 @@ export function linearPolarizationIn(f: Float64Array): void {
 export function stackReflectsIn(f: Float64Array): boolean {
   const kx = pin[0]!, ky = pin[1]!, kz = pin[2]!
   const rsRe = pin[3]!, rsIm = pin[4]!, rpRe = pin[5]!, rpIm = pin[6]!
-  project(f, kx, ky, kz, 0, 0, -1)
-  const esRe = pj[6]!, esIm = pj[7]!, epRe = pj[8]!, epIm = pj[9]!
+  // s = normalize(k × n) with n = −z: (−ky, kx, 0); p = s × k (as project)
+  let sx = -ky, sy = kx, sz = 0
+  let len = Math.sqrt(sx * sx + sy * sy)
+  if (len < 1e-12) {
+    sx = 0; sy = -kz; sz = ky
+    len = Math.sqrt(sy * sy + sz * sz)
+  }
+  const il = 1 / len
+  sx *= il; sy *= il; sz *= il
+  let px = sy * kz - sz * ky, py = sz * kx - sx * kz, pz = sx * ky - sy * kx
+  const f0 = f[0]!, f1 = f[1]!, f2 = f[2]!, f3 = f[3]!, f4 = f[4]!, f5 = f[5]!
+  const esRe = f0 * sx + f2 * sy + f4 * sz, esIm = f1 * sx + f3 * sy + f5 * sz
+  const epRe = f0 * px + f2 * py + f4 * pz, epIm = f1 * px + f3 * py + f5 * pz
   const R = (rsRe * rsRe + rsIm * rsIm) * (esRe * esRe + esIm * esIm) + (rpRe * rpRe + rpIm * rpIm) * (epRe * epRe + epIm * epIm)
   if (!(pin[10]! < R)) return false
-  compose(f, rsRe * esRe - rsIm * esIm, rsRe * esIm + rsIm * esRe, rpRe * epRe - rpIm * epIm, rpRe * epIm + rpIm * epRe, kx, ky, -kz)
+  // f = r_s·Es·s + r_p·Ep·(s × k_r), k_r = (kx, ky, −kz), over its norm √R
+  const im = 1 / Math.sqrt(R)
+  const aRe = (rsRe * esRe - rsIm * esIm) * im, aIm = (rsRe * esIm + rsIm * esRe) * im
+  const bRe = (rpRe * epRe - rpIm * epIm) * im, bIm = (rpRe * epIm + rpIm * epRe) * im
+  px = -sy * kz - sz * ky; py = sz * kx + sx * kz; pz = sx * ky - sy * kx
+  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
+  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
+  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
   return true
 }

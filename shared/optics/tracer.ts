@@ -30,7 +30,7 @@ import {
   EDGE_ABSORBING, EDGE_GROUND, EDGE_MIRRORED, END_EDGE, P_EDGE_KIND, P_EMIT_HEIGHT_UM, P_EMIT_WIDTH_UM, P_HALF_HEIGHT_UM, P_HALF_WIDTH_UM, panelBlockOf,
   panelEdgeHit, scoreSpot,
 } from './panel'
-import { sampleThinFilmLaunch, stackCoefficients, thinFilmNode } from './thinfilm/source'
+import { TF_GUIDE, TF_HEADER, thinFilmNode, thinFilmNodeLength } from './thinfilm/source'
 import { wrapToSite } from './lattice'
 import { SP_AL, SP_AS, SP_CDF, SP_GUIDE, SP_NE, SP_NL, SP_NODES, SP_NS, SP_STRIDE, SPECTRAL_GRID } from './spectral'
 import { measuredProfileOf } from './scene'
@@ -69,8 +69,6 @@ const v3 = new Float64Array(3)
 const hit = new Float64Array(3)
 // The ray's field in Fresnel mode "polarized" (crossings.ts: [xRe, xIm, yRe, yIm, zRe, zIm]).
 const pol = new Float64Array(6)
-// The thin-film stack's r_s, r_p at the ray's angle (thinfilm/source.ts stackCoefficients).
-const rc = new Float64Array(4)
 // A finite panel's edge hit (panel.ts panelEdgeHit: path parameter, which edge).
 const eh = new Float64Array(2)
 
@@ -96,6 +94,10 @@ export function traceRange(
   const colourBins = COLOUR_BINS, firstEdgeNm = COLOUR_FIRST_EDGE_NM, binsPerNm = COLOUR_BINS_PER_NM, inRange = COLOUR_IN_RANGE_BINS
   const axisBins = PIXEL_AXIS_BINS, colourAt = T_COLOUR
   const tfAt = scene[S_THINFILM_OFFSET]! // thin-film block (thinfilm/source.ts), 0 for the sheet emitter
+  // its layout (thinfilm/source.ts header): node 0, values per node, the μ grid, cells; a node's guide and r tables
+  const tfA = tfAt > 0 ? scene[tfAt + 3]! : 0, tfRA = tfAt > 0 ? scene[tfAt + 4]! : 0
+  const tfMu = tfAt + TF_HEADER, tfNodes = tfMu + tfA + 1, tfNL = thinFilmNodeLength(tfA, tfRA)
+  const tfR = 1 + 2 * (tfA + 1), tfRn = tfRA + 1, tfGuide = tfR + 4 * tfRn, tfG = TF_GUIDE
   const rb = scene[S_REFLECTANCE]!, fd = scene[S_DIFFUSE_FRACTION]!
   const hex = scene[S_LATTICE]! !== LATTICE_SQUARE
   const pitch = scene[S_PITCH_UM]!, aUm = scene[S_LENS_RADIUS_UM]!, hUm = scene[S_SAG_UM]!
@@ -176,8 +178,20 @@ export function traceRange(
     if (tfAt > 0) {
       // thin-film source: polarisation, μ and φ of the stack's emission into the glass; the ray starts there going up
       const uPol = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), uTheta = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!)), uPhi = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
-      const isP = sampleThinFilmLaunch(scene, tfAt, tfNode, uPol, uTheta, uPhi, v3)
-      dx = v3[0]!; dy = v3[1]!; dz = v3[2]!
+      // thinfilm/source.ts sampleThinFilmLaunch, inlined by hand (same operations in the same order)
+      const tb = tfNodes + tfNode * tfNL
+      const isP = uPol < scene[tb]! ? 0 : 1
+      const c = tb + 1 + isP * (tfA + 1)
+      let lo = scene[tb + tfGuide + isP * tfG + ((uTheta * tfG) | 0)]! | 0
+      while (scene[c + lo + 1]! <= uTheta) lo++
+      const ca = scene[c + lo]!, cb = scene[c + lo + 1]!
+      const f = cb > ca ? (uTheta - ca) / (cb - ca) : 0
+      const muA = scene[tfMu + lo]!, muB = scene[tfMu + lo + 1]!
+      const mu = muA + (muB - muA) * f
+      const m2 = 1 - mu * mu
+      const st = m2 > 0 ? Math.sqrt(m2) : 0
+      const phi = TWO_PI * uPhi
+      dx = st * Math.cos(phi); dy = st * Math.sin(phi); dz = mu
       if (polar) { pin[0] = dx; pin[1] = dy; pin[2] = dz; pin[10] = isP; linearPolarizationIn(pol) }
       med = MED_SUBSTRATE
     }
@@ -265,13 +279,25 @@ export function traceRange(
             if (trackPos) { x += dx * pathUm; y += dy * pathUm }
             if (tfAt > 0) {
               // the thin-film stack: its own coherent reflection, else absorbed in it (steps.ts stackStep)
-              stackCoefficients(scene, tfAt, tfNode, -dz, rc)
+              // thinfilm/source.ts stackCoefficients, inlined by hand: r_s, r_p linear in μ = −dz between grid points
+              const mx = (-dz > 1 ? 1 : -dz) * tfRA
+              let k = mx | 0
+              if (k > tfRA - 1) k = tfRA - 1
+              const f = mx - k
+              let q = tfNodes + tfNode * tfNL + tfR + k, v = scene[q]!
+              const rsRe = v + f * (scene[q + 1]! - v)
+              q += tfRn; v = scene[q]!
+              const rsIm = v + f * (scene[q + 1]! - v)
+              q += tfRn; v = scene[q]!
+              const rpRe = v + f * (scene[q + 1]! - v)
+              q += tfRn; v = scene[q]!
+              const rpIm = v + f * (scene[q + 1]! - v)
               const us = (ui < UB ? ubuf[ui++]! : (fillUniforms(rng, ubuf), (ui = 1), ubuf[0]!))
               if (polar) {
                 pin[0] = dx; pin[1] = dy; pin[2] = dz
-                pin[3] = rc[0]!; pin[4] = rc[1]!; pin[5] = rc[2]!; pin[6] = rc[3]!; pin[10] = us
+                pin[3] = rsRe; pin[4] = rsIm; pin[5] = rpRe; pin[6] = rpIm; pin[10] = us
                 if (!stackReflectsIn(pol)) { end = T_STACK_ABSORBED; break }
-              } else if (!(us < 0.5 * (rc[0]! * rc[0]! + rc[1]! * rc[1]! + rc[2]! * rc[2]! + rc[3]! * rc[3]!))) { end = T_STACK_ABSORBED; break }
+              } else if (!(us < 0.5 * (rsRe * rsRe + rsIm * rsIm + rpRe * rpRe + rpIm * rpIm))) { end = T_STACK_ABSORBED; break }
               dz = -dz
               break
             }

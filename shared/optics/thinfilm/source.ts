@@ -13,9 +13,12 @@
 //
 // Packed block (scene[S_THINFILM_OFFSET]): [W nodes, λ0 nm, Δλ nm, A emission cells, RA reflection cells,
 // μ_0..μ_A (μ_k = cos(k·90°/A)), then per node: p_s (probability that a ray is s-polarised), cdf_s[0..A],
-// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at μ_k = k/RA]]. Within a cell of the angle grid μ is
-// drawn uniformly (the power per dμ is taken constant over a 0.35° cell; the exact answer in flat.ts integrates the
-// unbinned power, and the two agree to ~1e-5).
+// cdf_p[0..A], Re r_s, Im r_s, Re r_p, Im r_p [0..RA each, at μ_k = k/RA], guide_s, guide_p [TF_GUIDE each]]. Within
+// a cell of the angle grid μ is drawn uniformly (the power per dμ is taken constant over a 0.35° cell; the exact
+// answer in flat.ts integrates the unbinned power, and the two agree to ~1e-5). Guide entry g of a polarisation is
+// the last cell whose cdf is ≤ g/TF_GUIDE: the inverse-CDF search starts there and steps up instead of bisecting
+// eight times (a mispredicted branch each); it lands on the cell bisection would (the unique k with
+// cdf[k] ≤ u < cdf[k + 1]), so the ray stream is unchanged (as spectral.ts's guide).
 import { DEFAULT_WAVELENGTH_NM, indexAt, spectrumRangeNm, type Scenario } from '../../types/scenario'
 import type { ThinFilm } from '../../types/thin-film'
 import { buildSpectralBlock, SP_CDF, SPECTRAL_GRID, spectralSlot } from '../spectral'
@@ -34,8 +37,13 @@ export const TF_ANGLE_CELLS = 256
 export const TF_REFLECTION_CELLS = 1024
 /** Largest spacing of the wavelength nodes (nm): the stack's response changes over tens of nm. */
 export const TF_STEP_NM = 5
-const TF_HEADER = 5
-const nodeLength = (A: number, RA: number) => 1 + 2 * (A + 1) + 4 * (RA + 1)
+/** Guide entries per polarisation and node (a power of 2, so u·TF_GUIDE is exact; 2 per emission cell). */
+export const TF_GUIDE = 512
+/** Header entries of the block ([W, λ0, Δλ, A, RA]); the μ grid follows, then the nodes. */
+export const TF_HEADER = 5
+/** Values per wavelength node of a block with A emission and RA reflection cells. */
+export const thinFilmNodeLength = (A: number, RA: number) => 1 + 2 * (A + 1) + 4 * (RA + 1) + 2 * TF_GUIDE
+const nodeLength = thinFilmNodeLength
 
 export interface ThinFilmNode {
   wavelengthNm: number
@@ -157,6 +165,11 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
       }
       for (let k = 1; k <= A; k++) block[c + k] = acc > 0 ? block[c + k]! / acc : k / A
       block[c + A] = 1
+      const gd = base + 1 + 2 * (A + 1) + 4 * (RA + 1) + pol * TF_GUIDE
+      for (let g = 0, lo = 0; g < TF_GUIDE; g++) {
+        while (lo < A - 1 && block[c + lo + 1]! <= g / TF_GUIDE) lo++
+        block[gd + g] = lo
+      }
     }
     // the stack's amplitude reflection seen from the glass, s and p
     const S = prepareStack(tfl, glassIndex, lam)
@@ -185,17 +198,19 @@ export function computeThinFilmSource(sc: Scenario, key = thinFilmSourceKey(sc))
  * returns 1 for p, 0 for s.
  */
 export function sampleThinFilmLaunch(scene: Float64Array, at: number, node: number, uPol: number, uTheta: number, uPhi: number, out: Float64Array): number {
-  const A = scene[at + 3]!
-  const base = at + TF_HEADER + (A + 1) + node * nodeLength(A, scene[at + 4]!)
+  const A = scene[at + 3]!, RA = scene[at + 4]!
+  const base = at + TF_HEADER + (A + 1) + node * nodeLength(A, RA)
   const isP = uPol < scene[base]! ? 0 : 1
   const c = base + 1 + isP * (A + 1)
-  let lo = 0, hi = A
-  while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (scene[c + mid]! <= uTheta) lo = mid; else hi = mid }
+  // the cell k with cdf[k] ≤ uTheta < cdf[k + 1], from the guide entry of uTheta
+  let lo = scene[base + 1 + 2 * (A + 1) + 4 * (RA + 1) + isP * TF_GUIDE + ((uTheta * TF_GUIDE) | 0)]! | 0
+  while (scene[c + lo + 1]! <= uTheta) lo++
   const a = scene[c + lo]!, b = scene[c + lo + 1]!
   const f = b > a ? (uTheta - a) / (b - a) : 0
   const muA = scene[at + TF_HEADER + lo]!, muB = scene[at + TF_HEADER + lo + 1]!
   const mu = muA + (muB - muA) * f
-  const s = Math.sqrt(Math.max(0, 1 - mu * mu)) // clamp: rounding at μ → 1
+  const m2 = 1 - mu * mu
+  const s = m2 > 0 ? Math.sqrt(m2) : 0 // clamp: rounding at μ → 1
   const phi = 2 * Math.PI * uPhi
   out[0] = s * Math.cos(phi)
   out[1] = s * Math.sin(phi)
