@@ -19,7 +19,7 @@ import { benchSweepAxes, benchSweepScenario, postgresCpuSeconds, startBenchQueue
 
 const { values } = parseArgs({ options: {
   'rays-per-cell': { type: 'string' }, steps: { type: 'string' }, 'tiny-rays': { type: 'string' },
-  'tiny-batch': { type: 'string' }, rounds: { type: 'string' }, skip: { type: 'string' },
+  'tiny-batch': { type: 'string' }, rounds: { type: 'string' }, skip: { type: 'string' }, prefetch: { type: 'string' },
 }, strict: true })
 const raysPerCell = Number(values['rays-per-cell'] ?? 200_000)
 const steps = Number(values.steps ?? 10)
@@ -27,6 +27,9 @@ const tinyBatch = Number(values['tiny-batch'] ?? 1000)
 const tinyRays = Number(values['tiny-rays'] ?? 10 * tinyBatch)
 const rounds = Number(values.rounds ?? 1)
 const skip = new Set((values.skip ?? '').split(',').filter(Boolean))
+/** Worker prefetch settings to measure (LENSFIELD_WORKER_PREFETCH); the companion comparison uses the last. */
+const prefetches = (values.prefetch ?? '0,1').split(',').map(Number)
+if (prefetches.some((p) => !Number.isInteger(p) || p < 0)) throw new Error(`--prefetch: whole numbers ≥ 0, got ${values.prefetch}`)
 for (const [k, v] of Object.entries({ raysPerCell, steps, tinyBatch, tinyRays, rounds })) {
   if (!Number.isInteger(v) || v < 1) throw new Error(`--${k}: a whole number ≥ 1 is needed, got ${v}`)
 }
@@ -43,8 +46,8 @@ console.log(`scale-out bench: ${steps} × ${steps} sweep, ${fmt(raysPerCell)} ra
 const children = new Set<ChildProcess>()
 process.on('exit', () => { for (const c of children) c.kill('SIGKILL') })
 
-function startWorkerProcess(): Promise<ChildProcess> {
-  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts', '--threads', '1'], {
+function startWorkerProcess(prefetch: number): Promise<ChildProcess> {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/worker.ts', '--threads', '1', '--prefetch', String(prefetch)], {
     cwd: repoRoot, env: { ...process.env, LENSFIELD_WORKER_THREADS: '1' }, stdio: ['ignore', 'pipe', 'inherit'],
   })
   children.add(child)
@@ -108,14 +111,15 @@ const measure = (t: Timed, threads: number): QueueOverhead => queueOverhead({
   wallSeconds: t.seconds, threads, computeSeconds: t.row.computeSeconds, jobs: t.row.batches, rays: t.row.raysDone,
 })
 
-interface ProcessSet { processes: number; big: Timed[]; tiny: Timed[]; tinyTwoRuns: Timed[] }
+interface ProcessSet { processes: number; prefetch: number; big: Timed[]; tiny: Timed[]; tinyTwoRuns: Timed[] }
 const results: ProcessSet[] = []
 // The bench process's own connections (its pool and its queue client, which enqueues), before any worker starts.
 await (await import('../server/queue/boss')).useBoss()
 const baseline = await q.connections()
 
-async function withProcesses(n: number, rec: ProcessSet) {
-  const procs = await Promise.all(Array.from({ length: n }, () => startWorkerProcess()))
+async function withProcesses(rec: ProcessSet) {
+  const n = rec.processes
+  const procs = await Promise.all(Array.from({ length: n }, () => startWorkerProcess(rec.prefetch)))
   try {
     // Warm-up: a run of 4 batches per process, so every process has compiled the core before the clock starts.
     const warm = await q.createRun({ kind: 'single', rays: 100_000 * n, batchRays: 25_000 })
@@ -125,7 +129,7 @@ async function withProcesses(n: number, rec: ProcessSet) {
       const t = await timed(bigSweep)
       rec.big.push(t)
       const o = measure(t, n)
-      console.log(`  ${n} process(es) × 1 thread: ${t.seconds.toFixed(2).padStart(6)} s for ${cells} cells, ${fmt(t.row.raysDone / t.seconds)} rays/s, `
+      console.log(`  ${n} process(es) × 1 thread, prefetch ${rec.prefetch}: ${t.seconds.toFixed(2).padStart(6)} s for ${cells} cells, ${fmt(t.row.raysDone / t.seconds)} rays/s, `
         + `queue share ${(100 * o.fraction).toFixed(1)} %, best cell ${t.row.bestCellIndex} (load ${l0} → ${load()})`)
     }
     if (!skip.has('tiny')) {
@@ -133,7 +137,7 @@ async function withProcesses(n: number, rec: ProcessSet) {
       const t = await timed(tinySweep)
       rec.tiny.push(t)
       const o = measure(t, n)
-      console.log(`  ${n} process(es), tiny batches: ${t.row.batches} jobs in ${t.seconds.toFixed(2)} s = ${o.jobsPerSecond.toFixed(1)} jobs/s, `
+      console.log(`  ${n} process(es), prefetch ${rec.prefetch}, tiny batches: ${t.row.batches} jobs in ${t.seconds.toFixed(2)} s = ${o.jobsPerSecond.toFixed(1)} jobs/s, `
         + `queue share ${(100 * o.fraction).toFixed(1)} %, ${(o.perJobSeconds * 1000).toFixed(1)} ms of thread time a job, `
         + `PostgreSQL ${t.pgCpu === null ? '?' : `${(1000 * t.pgCpu / t.row.batches).toFixed(2)} ms CPU a job`} (load ${l0} → ${load()})`)
       if (n > 1) {
@@ -154,10 +158,12 @@ async function withProcesses(n: number, rec: ProcessSet) {
 if (!skip.has('scaleout') || !skip.has('tiny')) {
   console.log('worker processes (npm run worker -- --threads 1), interleaved by round:')
   for (let r = 0; r < rounds; r++) {
-    for (const n of [1, 2]) {
-      let rec = results.find((x) => x.processes === n)
-      if (!rec) results.push((rec = { processes: n, big: [], tiny: [], tinyTwoRuns: [] }))
-      await withProcesses(n, rec)
+    for (const prefetch of prefetches) {
+      for (const n of [1, 2]) {
+        let rec = results.find((x) => x.processes === n && x.prefetch === prefetch)
+        if (!rec) results.push((rec = { processes: n, prefetch, big: [], tiny: [], tinyTwoRuns: [] }))
+        await withProcesses(rec)
+      }
     }
   }
 }
@@ -166,10 +172,10 @@ if (!skip.has('scaleout') || !skip.has('tiny')) {
 const companion: Record<'quadrature' | 'traced', Timed[]> = { quadrature: [], traced: [] }
 if (!skip.has('companion')) {
   const { startBatchWorker } = await import('../server/queue/worker')
-  console.log('flat companion, in-process batch worker of 1 thread, interleaved by round:')
+  console.log(`flat companion, in-process batch worker of 1 thread, prefetch ${prefetches.at(-1)}, interleaved by round:`)
   for (let r = 0; r < rounds; r++) {
     for (const method of ['quadrature', 'traced'] as const) {
-      const worker = await startBatchWorker({ threads: 1, companion: method })
+      const worker = await startBatchWorker({ threads: 1, prefetch: prefetches.at(-1), companion: method })
       try {
         await q.waitDone(await q.createRun({ kind: 'single', rays: 100_000, batchRays: 25_000 }))
         const l0 = load()
@@ -190,33 +196,38 @@ if (!skip.has('companion')) {
 const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); const m = s.length >> 1; return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2 }
 const spread = (xs: number[]) => xs.length > 1 ? ` (rounds ${xs.map((x) => x.toFixed(2)).join(', ')})` : ''
 console.log(`summary (load average now ${load()}):`)
-const one = results.find((x) => x.processes === 1)
-const two = results.find((x) => x.processes === 2)
-if (one?.big.length && two?.big.length) {
-  const ratios = one.big.map((t, i) => t.seconds / two.big[i]!.seconds)
-  console.log(`  scale-out, 2 processes vs 1 (1 thread each): ×${median(ratios).toFixed(2)} wall throughput${spread(ratios)} (target ≥ 1.8)`)
-}
 let perJob: number | null = null
 let perRay: number | null = null
-if (one?.tiny.length) {
-  const o = one.tiny.map((t) => measure(t, 1))
-  perJob = median(o.map((x) => x.perJobSeconds))
-  console.log(`  queue, 1 process: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s; ${(perJob * 1000).toFixed(1)} ms of queue time a job on a thread`)
-}
-if (two?.tiny.length) {
-  const o = two.tiny.map((t) => measure(t, 2))
-  console.log(`  queue, 2 processes: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s on one PostgreSQL (same 2 cores as the workers), one sweep`)
-  if (two.tinyTwoRuns.length) {
-    const o2 = two.tinyTwoRuns.map((t) => measure(t, 2))
-    console.log(`  queue, 2 processes, 2 sweeps at once: ${median(o2.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s`)
+for (const prefetch of prefetches) {
+  const one = results.find((x) => x.processes === 1 && x.prefetch === prefetch)
+  const two = results.find((x) => x.processes === 2 && x.prefetch === prefetch)
+  const tag = `prefetch ${prefetch}`
+  if (one?.big.length && two?.big.length) {
+    const ratios = one.big.map((t, i) => t.seconds / two.big[i]!.seconds)
+    console.log(`  ${tag}: scale-out, 2 processes vs 1 (1 thread each): ×${median(ratios).toFixed(2)} wall throughput${spread(ratios)} (target ≥ 1.8); `
+      + `1 process ${median(one.big.map((t) => t.seconds)).toFixed(2)} s, queue share ${(100 * median(one.big.map((t) => measure(t, 1).fraction))).toFixed(1)} %`)
   }
-  const cpu = two.tiny.map((t) => t.pgCpu).filter((x): x is number => x !== null)
-  if (cpu.length) console.log(`  PostgreSQL CPU: ${(1000 * median(cpu.map((c, i) => c / two.tiny[i]!.row.batches))).toFixed(2)} ms a job (live backends)`)
+  if (one?.tiny.length) {
+    const o = one.tiny.map((t) => measure(t, 1))
+    const pj = median(o.map((x) => x.perJobSeconds))
+    if (prefetch === prefetches[0]) perJob = pj
+    console.log(`  ${tag}: queue, 1 process: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s; ${(pj * 1000).toFixed(1)} ms of queue time a job on a thread`)
+  }
+  if (two?.tiny.length) {
+    const o = two.tiny.map((t) => measure(t, 2))
+    console.log(`  ${tag}: queue, 2 processes: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s on one PostgreSQL (same 2 cores as the workers), one sweep`)
+    if (two.tinyTwoRuns.length) {
+      const o2 = two.tinyTwoRuns.map((t) => measure(t, 2))
+      console.log(`  ${tag}: queue, 2 processes, 2 sweeps at once: ${median(o2.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s`)
+    }
+    const cpu = two.tiny.map((t) => t.pgCpu).filter((x): x is number => x !== null)
+    if (cpu.length) console.log(`  ${tag}: PostgreSQL CPU ${(1000 * median(cpu.map((c, i) => c / two.tiny[i]!.row.batches))).toFixed(2)} ms a job (live backends)`)
+  }
 }
-const allBig = [...(one?.big ?? []), ...(companion.quadrature)]
+const allBig = [...results.flatMap((r) => r.processes === 1 ? r.big : []), ...companion.quadrature]
 if (allBig.length) perRay = median(allBig.map((t) => t.row.computeSeconds / t.row.raysDone))
 if (perJob !== null && perRay !== null) {
-  console.log(`  trace time ${(perRay * 1e6).toFixed(3)} µs a ray on one thread; batch for queue time < 5 % of trace time: `
+  console.log(`  trace time ${(perRay * 1e6).toFixed(3)} µs a ray on one thread; without prefetch, batch for queue time < 5 % of trace time: `
     + `≥ ${fmt(batchRaysForOverhead(perJob, perRay, 0.05))} rays (today's default 200 000: ${(100 * perJob / (200_000 * perRay)).toFixed(2)} %)`)
 }
 const procs = results.flatMap((r) => r.big.concat(r.tiny).map((t) => ({ n: r.processes, t })))
@@ -225,6 +236,7 @@ if (procs.length) {
     const extra = Object.entries(t.peakConnections).reduce((s, [k, v]) => s + Math.max(0, v - (baseline[k] ?? 0)), 0)
     return extra / n
   }
+  const two = results.find((x) => x.processes === 2)
   const byApp = (two?.tiny[0] ?? two?.big[0])?.peakConnections
   console.log(`  connections a worker process holds (peak over the runs): ${Math.max(...procs.map(({ n, t }) => per(t, n))).toFixed(1)}`
     + `${byApp ? `; peak by application with 2 workers ${JSON.stringify(byApp)}, before the workers ${JSON.stringify(baseline)}` : ''}`)

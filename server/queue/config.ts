@@ -50,6 +50,12 @@ export function jobSettings() {
      * 0.5 at the least). A busy subscription asks again as soon as its batch is done; many idle machines on one
      * database poll it 1/pollingSeconds times a second each per thread, so a large fleet raises it (README).
      */
+    /**
+     * Batches a worker process holds beyond one per tracing thread (LENSFIELD_WORKER_PREFETCH, default 0): with 1,
+     * the next batch is already queued on the pool while one commits, so queue and commit time no longer idle the
+     * threads (bench/scale-out.ts); a worker that dies then hands back one more batch to expiry.
+     */
+    prefetch: envInt('LENSFIELD_WORKER_PREFETCH', 0, 0),
     pollingSeconds: envNumber('LENSFIELD_QUEUE_POLL_SECONDS', 0.5, 0.5),
   }
 }

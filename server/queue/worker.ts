@@ -16,6 +16,7 @@ import { createTracePool, defaultThreads } from './pool'
 export interface BatchWorker {
   name: string
   threads: number
+  prefetch: number
   /** Stops taking jobs, waits up to graceMs for running batches, then aborts what is left (it is retried). */
   stop(graceMs?: number): Promise<void>
 }
@@ -49,8 +50,11 @@ async function traceBatch(pool: Piscina, scenario: unknown, firstRay: number, ra
  * quadrature companion; the commit keeps a traced companion's counts and summarises with them). Only
  * bench/scale-out.ts sets it, to time today's sweep against that one; the default is the engine's own rule.
  */
-export async function startBatchWorker(opts: { threads?: number; companion?: CompanionMethod } = {}): Promise<BatchWorker> {
+export async function startBatchWorker(opts: { threads?: number; prefetch?: number; companion?: CompanionMethod } = {}): Promise<BatchWorker> {
   const threads = opts.threads ?? defaultThreads()
+  // Extra subscriptions beyond one per thread: each holds one more batch, whose chunks wait in the pool's queue while
+  // the batch before it commits, so a thread does not idle through a commit and the next fetch.
+  const prefetch = opts.prefetch ?? jobSettings().prefetch
   const settings = jobSettings()
   const name = `${hostname()}:${process.pid}`
   const pool = createTracePool(threads)
@@ -106,7 +110,7 @@ export async function startBatchWorker(opts: { threads?: number; companion?: Com
   }
 
   const workIds: string[] = []
-  for (let i = 0; i < threads; i++) {
+  for (let i = 0; i < threads + prefetch; i++) {
     let workId = ''
     workId = await boss.work(QUEUE_BATCH, { batchSize: 1, pollingIntervalSeconds: settings.pollingSeconds },
       async ([job]) => {
@@ -126,6 +130,7 @@ export async function startBatchWorker(opts: { threads?: number; companion?: Com
   return {
     name,
     threads,
+    prefetch,
     async stop(graceMs = 10_000) {
       for (const id of workIds) await boss.offWork({ id }).catch(() => {})
       if (inFlight.size) {
