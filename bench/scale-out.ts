@@ -111,6 +111,14 @@ const measure = (t: Timed, threads: number): QueueOverhead => queueOverhead({
   wallSeconds: t.seconds, threads, computeSeconds: t.row.computeSeconds, jobs: t.row.batches, rays: t.row.raysDone,
 })
 
+/**
+ * The queue's share of the threads' time. With prefetch a batch's compute_ms also holds its wait on the pool behind
+ * the batch before it, so the share is not measured then (compare the wall times instead).
+ */
+const share = (o: QueueOverhead, prefetch: number) => prefetch > 0
+  ? 'queue share not measured with prefetch'
+  : `queue share ${(100 * o.fraction).toFixed(1)} %, ${(o.perJobSeconds * 1000).toFixed(1)} ms of thread time a job`
+
 interface ProcessSet { processes: number; prefetch: number; big: Timed[]; tiny: Timed[]; tinyTwoRuns: Timed[] }
 const results: ProcessSet[] = []
 // The bench process's own connections (its pool and its queue client, which enqueues), before any worker starts.
@@ -130,7 +138,7 @@ async function withProcesses(rec: ProcessSet) {
       rec.big.push(t)
       const o = measure(t, n)
       console.log(`  ${n} process(es) × 1 thread, prefetch ${rec.prefetch}: ${t.seconds.toFixed(2).padStart(6)} s for ${cells} cells, ${fmt(t.row.raysDone / t.seconds)} rays/s, `
-        + `queue share ${(100 * o.fraction).toFixed(1)} %, best cell ${t.row.bestCellIndex} (load ${l0} → ${load()})`)
+        + `${share(o, rec.prefetch)}, best cell ${t.row.bestCellIndex} (load ${l0} → ${load()})`)
     }
     if (!skip.has('tiny')) {
       const l0 = load()
@@ -138,7 +146,7 @@ async function withProcesses(rec: ProcessSet) {
       rec.tiny.push(t)
       const o = measure(t, n)
       console.log(`  ${n} process(es), prefetch ${rec.prefetch}, tiny batches: ${t.row.batches} jobs in ${t.seconds.toFixed(2)} s = ${o.jobsPerSecond.toFixed(1)} jobs/s, `
-        + `queue share ${(100 * o.fraction).toFixed(1)} %, ${(o.perJobSeconds * 1000).toFixed(1)} ms of thread time a job, `
+        + `${share(o, rec.prefetch)}, `
         + `PostgreSQL ${t.pgCpu === null ? '?' : `${(1000 * t.pgCpu / t.row.batches).toFixed(2)} ms CPU a job`} (load ${l0} → ${load()})`)
       if (n > 1) {
         // Commits of one run take its row lock in turn; two runs at once show what the queue carries across runs.
@@ -183,7 +191,7 @@ if (!skip.has('companion')) {
         companion[method].push(t)
         const o = measure(t, 1)
         console.log(`  companion ${method.padEnd(10)}: ${t.seconds.toFixed(2).padStart(6)} s for ${cells} cells, `
-          + `${fmt(t.row.raysDone / t.seconds)} device rays/s, trace time ${t.row.computeSeconds.toFixed(2)} s, queue share ${(100 * o.fraction).toFixed(1)} %, `
+          + `${fmt(t.row.raysDone / t.seconds)} device rays/s, ${share(o, prefetches.at(-1)!)}, `
           + `best cell ${t.row.bestCellIndex} (load ${l0} → ${load()})`)
       } finally {
         await worker.stop()
@@ -205,13 +213,14 @@ for (const prefetch of prefetches) {
   if (one?.big.length && two?.big.length) {
     const ratios = one.big.map((t, i) => t.seconds / two.big[i]!.seconds)
     console.log(`  ${tag}: scale-out, 2 processes vs 1 (1 thread each): ×${median(ratios).toFixed(2)} wall throughput${spread(ratios)} (target ≥ 1.8); `
-      + `1 process ${median(one.big.map((t) => t.seconds)).toFixed(2)} s, queue share ${(100 * median(one.big.map((t) => measure(t, 1).fraction))).toFixed(1)} %`)
+      + `1 process ${median(one.big.map((t) => t.seconds)).toFixed(2)} s, 2 processes ${median(two.big.map((t) => t.seconds)).toFixed(2)} s`)
   }
   if (one?.tiny.length) {
     const o = one.tiny.map((t) => measure(t, 1))
     const pj = median(o.map((x) => x.perJobSeconds))
-    if (prefetch === prefetches[0]) perJob = pj
-    console.log(`  ${tag}: queue, 1 process: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s; ${(pj * 1000).toFixed(1)} ms of queue time a job on a thread`)
+    if (prefetch === 0) perJob = pj
+    console.log(`  ${tag}: queue, 1 process: ${median(o.map((x) => x.jobsPerSecond)).toFixed(1)} jobs/s`
+      + `${prefetch === 0 ? `; ${(pj * 1000).toFixed(1)} ms of queue time a job on a thread` : ''}`)
   }
   if (two?.tiny.length) {
     const o = two.tiny.map((t) => measure(t, 2))
@@ -224,7 +233,7 @@ for (const prefetch of prefetches) {
     if (cpu.length) console.log(`  ${tag}: PostgreSQL CPU ${(1000 * median(cpu.map((c, i) => c / two.tiny[i]!.row.batches))).toFixed(2)} ms a job (live backends)`)
   }
 }
-const allBig = [...results.flatMap((r) => r.processes === 1 ? r.big : []), ...companion.quadrature]
+const allBig = results.flatMap((r) => r.processes === 1 && r.prefetch === 0 ? r.big : [])
 if (allBig.length) perRay = median(allBig.map((t) => t.row.computeSeconds / t.row.raysDone))
 if (perJob !== null && perRay !== null) {
   console.log(`  trace time ${(perRay * 1e6).toFixed(3)} µs a ray on one thread; without prefetch, batch for queue time < 5 % of trace time: `
