@@ -14,7 +14,7 @@ import { spawn, type ChildProcess } from 'node:child_process'
 import { loadavg } from 'node:os'
 import { parseArgs } from 'node:util'
 import { repoRoot } from '../scripts/postgres'
-import { batchRaysForOverhead, queueOverhead, type QueueOverhead } from './queue-sizing'
+import { batchRaysForOverhead, fleetSizing, queueOverhead, type QueueOverhead } from './queue-sizing'
 import { benchSweepAxes, benchSweepScenario, postgresCpuSeconds, startBenchQueue, type RunRow } from './throwaway-server'
 
 const { values } = parseArgs({ options: {
@@ -249,6 +249,29 @@ if (procs.length) {
   const byApp = (two?.tiny[0] ?? two?.big[0])?.peakConnections
   console.log(`  connections a worker process holds (peak over the runs): ${Math.max(...procs.map(({ n, t }) => per(t, n))).toFixed(1)}`
     + `${byApp ? `; peak by application with 2 workers ${JSON.stringify(byApp)}, before the workers ${JSON.stringify(baseline)}` : ''}`)
+}
+// The README's sized example, from this run's figures: 100 machines of 8 cores (7 tracing threads, prefetch 1), the
+// fleet's job rate held to half of the jobs/s measured here on one PostgreSQL, idle polling every 5 s.
+const zero1 = results.find((x) => x.processes === 1 && x.prefetch === 0)
+const zero2 = results.find((x) => x.processes === 2 && x.prefetch === 0)
+if (perRay !== null && zero1?.tiny.length) {
+  const measuredJobs = median(zero1.tiny.map((t) => measure(t, 1).jobsPerSecond))
+  const cpus = (zero2?.tiny ?? zero1.tiny).map((t) => (t.pgCpu ?? 0) / t.row.batches)
+  const machines = 100, threadsPerMachine = 7, prefetch = 1
+  // Connections of one process: its queue client (pg-boss pool, measured), one LISTEN, and the app pool, which holds
+  // about one connection per subscription in a commit plus one (capped at its max of 10).
+  const queueConns = Math.max(1, ...results.flatMap((r) => r.big.concat(r.tiny)).map((t) => ((t.peakConnections['lensfield-queue'] ?? 0)
+    - (baseline['lensfield-queue'] ?? 0))))
+  const perProcess = Math.min(4, queueConns) + 1 + Math.min(10, 1 + threadsPerMachine + prefetch)
+  const batchRays = Math.ceil(machines * threadsPerMachine / (0.5 * measuredJobs * perRay) / 1e6) * 1e6
+  const f = fleetSizing({
+    machines, threadsPerMachine, batchRays, secondsPerRay: perRay, connectionsPerProcess: perProcess,
+    databaseCpuSecondsPerJob: median(cpus), pollingSeconds: 5, reservedConnections: 50,
+  })
+  console.log(`  fleet example (${machines} machines × ${threadsPerMachine} threads, prefetch ${prefetch}, job rate ≤ half of ${measuredJobs.toFixed(0)} jobs/s): `
+    + `batches of ${fmt(batchRays)} rays (${f.batchSeconds.toFixed(1)} s a batch), ${f.jobsPerSecond.toFixed(1)} jobs/s, ${(f.raysPerSecond / 1e6).toFixed(0)} M rays/s; `
+    + `${perProcess} connections a machine → ${f.connections} (max_connections ${f.maxConnections}); idle polls ${f.idlePollsPerSecond.toFixed(0)}/s at 5 s; `
+    + `PostgreSQL ${f.databaseCores.toFixed(2)} cores of job work; events a batch ≈ ${fmt(batchRays * 7.6)} at 7.6 a ray`)
 }
 if (companion.quadrature.length && companion.traced.length) {
   const ratios = companion.quadrature.map((t, i) => companion.traced[i]!.seconds / t.seconds)
