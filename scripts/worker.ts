@@ -9,9 +9,11 @@ import { startBatchWorker } from '../server/queue/worker'
 import { isDatabaseUnavailable } from '../server/utils/unavailable'
 import { prepareWorker } from './trace-pool'
 
-const { values } = parseArgs({ options: { threads: { type: 'string' }, help: { type: 'boolean', short: 'h' } } })
+const { values } = parseArgs({ options: { threads: { type: 'string' }, prefetch: { type: 'string' }, help: { type: 'boolean', short: 'h' } } })
 if (values.help) {
-  console.log('usage: npm run worker -- [--threads N]\n  DATABASE_URL must point at the Lensfield database.\n  Threads default to cores − 1 (at least 1), or LENSFIELD_WORKER_THREADS.')
+  console.log('usage: npm run worker -- [--threads N] [--prefetch N]\n  DATABASE_URL must point at the Lensfield database.\n'
+    + '  Threads default to cores − 1 (at least 1), or LENSFIELD_WORKER_THREADS.\n'
+    + '  Prefetch: batches held beyond one per thread, so a thread does not wait for a commit (default 0, or LENSFIELD_WORKER_PREFETCH).')
   process.exit(0)
 }
 if (!process.env.DATABASE_URL) {
@@ -40,8 +42,16 @@ process.on('unhandledRejection', (err) => {
 
 // Run from source: the pool loads the bundle of workers/trace.ts, rebuilt here when sources are newer.
 process.env.LENSFIELD_TRACE_WORKER = await prepareWorker()
-const worker = await startBatchWorker({ threads })
-console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s); Ctrl-C to stop`)
+let prefetch: number | undefined
+if (values.prefetch !== undefined) {
+  prefetch = Number(values.prefetch)
+  if (!Number.isInteger(prefetch) || prefetch < 0) {
+    console.error(`--prefetch must be a whole number ≥ 0: got ${values.prefetch}`)
+    process.exit(2)
+  }
+}
+const worker = await startBatchWorker({ threads, prefetch })
+console.log(`[worker] ${worker.name} tracing on ${worker.threads} thread(s), prefetch ${worker.prefetch}; Ctrl-C to stop`)
 // On a signal (or an uncaught error) finish or hand back the running batches, then stop; a second signal, or 60 s,
 // ends at once (the queue retries what was left). Unhandled rejections are handled above, not a reason to stop.
 closeWithGrace({ delay: 60_000, skip: ['unhandledRejection'] }, async ({ signal, err }) => {

@@ -9,6 +9,14 @@ function envInt(name: string, fallback: number, min: number): number {
   return v
 }
 
+function envNumber(name: string, fallback: number, min: number): number {
+  const raw = process.env[name]
+  if (raw === undefined || raw === '') return fallback
+  const v = Number(raw)
+  if (!Number.isFinite(v) || v < min) throw new Error(`${name} must be a number ≥ ${min}: got ${raw}`)
+  return v
+}
+
 export const QUEUE_BATCH = 'lensfield-trace-batch'
 export const QUEUE_DEAD = 'lensfield-trace-batch-dead'
 /** NOTIFY channels; payloads carry ids only. */
@@ -37,7 +45,17 @@ export function jobSettings() {
      * already has queued would pass it. Cost counts the device and its planar companion.
      */
     teamRayLimit: envInt('LENSFIELD_TEAM_RAY_LIMIT', 1_000_000_000, 1000),
-    /** How often an idle worker asks the queue for work (pg-boss allows 0.5 s at the least). */
-    pollingSeconds: 0.5,
+    /**
+     * How often an idle worker's subscription (one per thread) asks the queue for work, in seconds (pg-boss allows
+     * 0.5 at the least). A busy subscription asks again as soon as its batch is done; many idle machines on one
+     * database poll it 1/pollingSeconds times a second each per thread, so a large fleet raises it (README).
+     */
+    /**
+     * Batches a worker process holds beyond one per tracing thread (LENSFIELD_WORKER_PREFETCH, default 0): with 1,
+     * the next batch is already queued on the pool while one commits, so queue and commit time no longer idle the
+     * threads (bench/scale-out.ts); a worker that dies then hands back one more batch to expiry.
+     */
+    prefetch: envInt('LENSFIELD_WORKER_PREFETCH', 0, 0),
+    pollingSeconds: envNumber('LENSFIELD_QUEUE_POLL_SECONDS', 0.5, 0.5),
   }
 }

@@ -4,7 +4,7 @@
 // delivered twice is counted once. Cancellation arrives as NOTIFY and aborts the run's running pool tasks.
 import { hostname } from 'node:os'
 import type { Piscina } from 'piscina'
-import { createTally, mergeRunTallies, runTalliesFromBuffer, CHUNK_RAYS, type RunTallies } from '../../shared/optics'
+import { createTally, mergeRunTallies, runTalliesFromBuffer, CHUNK_RAYS, type CompanionMethod, type RunTallies } from '../../shared/optics'
 import { commitBatch, failBatch, recordBatchError, startBatch } from '../runs/commit'
 import { chunkEventBudget } from '../runs/cost'
 import { useBoss } from './boss'
@@ -16,6 +16,7 @@ import { createTracePool, defaultThreads } from './pool'
 export interface BatchWorker {
   name: string
   threads: number
+  prefetch: number
   /** Stops taking jobs, waits up to graceMs for running batches, then aborts what is left (it is retried). */
   stop(graceMs?: number): Promise<void>
 }
@@ -26,12 +27,12 @@ class TooSlow extends Error {}
 
 /** Traces one batch on the pool; chunk boundaries follow the core's fixed chunking, so results never depend on it. */
 async function traceBatch(pool: Piscina, scenario: unknown, firstRay: number, rayCount: number, seed: number,
-  budget: { batchEvents: number | null; batchRays: number }, signal: AbortSignal): Promise<RunTallies> {
+  budget: { batchEvents: number | null; batchRays: number }, signal: AbortSignal, companion?: CompanionMethod): Promise<RunTallies> {
   const tasks: Array<Promise<ArrayBuffer>> = []
   for (let first = firstRay; first < firstRay + rayCount; first += CHUNK_RAYS) {
     const count = Math.min(CHUNK_RAYS, firstRay + rayCount - first)
     const eventBudget = chunkEventBudget(budget.batchEvents, budget.batchRays, count)
-    tasks.push(pool.run({ scenario, firstRay: first, rayCount: count, seed, eventBudget }, { signal }))
+    tasks.push(pool.run({ scenario, firstRay: first, rayCount: count, seed, eventBudget, companion }, { signal }))
   }
   const bufs = await Promise.all(tasks)
   let total: RunTallies | null = null
@@ -43,9 +44,17 @@ async function traceBatch(pool: Piscina, scenario: unknown, firstRay: number, ra
   return total!
 }
 
-/** Starts a worker in this process: `threads` queue subscriptions feeding one pool of `threads` threads. */
-export async function startBatchWorker(opts: { threads?: number } = {}): Promise<BatchWorker> {
+/**
+ * Starts a worker in this process: `threads` queue subscriptions feeding one pool of `threads` threads.
+ * `companion: 'traced'` traces the planar companion of every lens cell beside it (the way runs were traced before the
+ * quadrature companion; the commit keeps a traced companion's counts and summarises with them). Only
+ * bench/scale-out.ts sets it, to time today's sweep against that one; the default is the engine's own rule.
+ */
+export async function startBatchWorker(opts: { threads?: number; prefetch?: number; companion?: CompanionMethod } = {}): Promise<BatchWorker> {
   const threads = opts.threads ?? defaultThreads()
+  // Extra subscriptions beyond one per thread: each holds one more batch, whose chunks wait in the pool's queue while
+  // the batch before it commits, so a thread does not idle through a commit and the next fetch.
+  const prefetch = opts.prefetch ?? jobSettings().prefetch
   const settings = jobSettings()
   const name = `${hostname()}:${process.pid}`
   const pool = createTracePool(threads)
@@ -79,7 +88,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
     const t0 = performance.now()
     try {
       const tallies = await traceBatch(pool, row.scenario, row.firstRay, row.rayCount, row.seed,
-        { batchEvents: row.batchEvents, batchRays: row.batchRays }, ac.signal)
+        { batchEvents: row.batchEvents, batchRays: row.batchRays }, ac.signal, opts.companion)
       await commitBatch(data.cellId, data.batchIndex, tallies, performance.now() - t0, name)
       return { rays: row.rayCount }
     } catch (err) {
@@ -101,7 +110,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
   }
 
   const workIds: string[] = []
-  for (let i = 0; i < threads; i++) {
+  for (let i = 0; i < threads + prefetch; i++) {
     let workId = ''
     workId = await boss.work(QUEUE_BATCH, { batchSize: 1, pollingIntervalSeconds: settings.pollingSeconds },
       async ([job]) => {
@@ -121,6 +130,7 @@ export async function startBatchWorker(opts: { threads?: number } = {}): Promise
   return {
     name,
     threads,
+    prefetch,
     async stop(graceMs = 10_000) {
       for (const id of workIds) await boss.offWork({ id }).catch(() => {})
       if (inFlight.size) {

@@ -4,9 +4,10 @@
 // of what each plots; the result page and the sweep cell view mount them through ChartPanel.
 import type { ColourResult, TraceResult } from '#shared/types/result'
 import { LOCUS_LABELS_NM, SPECTRAL_LOCUS_XY } from './cieLocus'
+import { PALETTE } from '../palette'
 
-const INK = '#17202b', EMBER = '#b86d18', LAGOON = '#1f6b6a', MUTED = '#64707f', RULE = '#d8d5cc'
-const SPECTRUM_SHADES = [EMBER, '#d9892b', '#6e3f0b', '#a8742f']
+const INK = PALETTE.ink.DEFAULT, EMBER = PALETTE.ember[600], LAGOON = PALETTE.lagoon[600], MUTED = PALETTE.ink.muted, RULE = PALETTE.rule.DEFAULT
+const SPECTRUM_SHADES = [EMBER, PALETTE.ember[500], PALETTE.ember[800], '#a8742f']
 /** The trajectory is drawn to this polar angle (deg). */
 export const TRAJECTORY_MAX_DEG = 80
 

@@ -2,8 +2,9 @@
 // editor's material field. A line spectrum spans one wavelength: the plot then shows ±100 nm around it with the
 // line marked, so the dispersion near it is still readable.
 import { extinctionAt, indexAt, type IndexModel } from '#shared/types/scenario'
+import { PALETTE } from '../palette'
 
-const EMBER = '#b86d18', LAGOON = '#1f6b6a', MUTED = '#64707f'
+const EMBER = PALETTE.ember[600], LAGOON = PALETTE.lagoon[600], MUTED = PALETTE.ink.muted
 
 export interface IndexCurve { nm: number[]; n: number[]; k: number[] | null; spanNm: [number, number]; lineNm: number | null }
 

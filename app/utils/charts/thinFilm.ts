@@ -2,8 +2,9 @@
 // dissipation spectrum K(u) with its regions, the mode split flat vs film, and the angular emission into the
 // glass. Pure: they take the parsed result and return plain objects, so they are tested without a browser.
 import type { ThinFilmResult } from '#shared/types/result'
+import { PALETTE } from '../palette'
 
-const INK = '#17202b', EMBER = '#b86d18', LAGOON = '#1f6b6a', MUTED = '#64707f', PLUM = '#7a4f86'
+const INK = PALETTE.ink.DEFAULT, EMBER = PALETTE.ember[600], LAGOON = PALETTE.lagoon[600], MUTED = PALETTE.ink.muted, PLUM = '#7a4f86'
 
 export interface CsvTable { header: string[]; rows: Array<Array<string | number | null>> }
 
