@@ -39,7 +39,7 @@ export function expectWithinSigma(label: string, got: number, want: number, sigm
 /** Composite Gauss–Legendre (5 points) of f over [a, b] in m panels. */
 export function integrate(f: (x: number) => number, a: number, b: number, m = 400): number {
   const xs = [0, -0.5384693101056831, 0.5384693101056831, -0.906179845938664, 0.906179845938664]
-  const ws = [0.5688888888888889, 0.47862867049936647, 0.47862867049936647, 0.23692688505618909, 0.23692688505618909]
+  const ws = [0.5688888888888889, 0.47862867049936647, 0.47862867049936647, 0.2369268850561891, 0.2369268850561891]
   let s = 0
   const h = (b - a) / m
   for (let i = 0; i < m; i++) {
