@@ -299,6 +299,17 @@ export function metalReflectIn(f: Float64Array): void {
   f[0] = -f[0]!; f[1] = -f[1]!; f[2] = -f[2]!; f[3] = -f[3]!
 }
 
+function compose(f: Float64Array, aRe: number, aIm: number, bRe: number, bIm: number, qx: number, qy: number, qz: number): void {
+  const sx = pj[0]!, sy = pj[1]!, sz = pj[2]!
+  // s ⊥ q, both unit: p = s × q is unit to rounding (no renormalisation of p needed)
+  const px = sy * qz - sz * qy, py = sz * qx - sx * qz, pz = sx * qy - sy * qx
+  const im = 1 / Math.sqrt(aRe * aRe + aIm * aIm + bRe * bRe + bIm * bIm)
+  aRe *= im; aIm *= im; bRe *= im; bIm *= im
+  f[0] = aRe * sx + bRe * px; f[1] = aIm * sx + bIm * px
+  f[2] = aRe * sy + bRe * py; f[3] = aIm * sy + bIm * py
+  f[4] = aRe * sz + bRe * pz; f[5] = aIm * sz + bIm * pz
+}
+
 /**
  * An ideal metal face with unit normal n (pin[3..5], into the metal; the finite panel's mirrored edge): the field's
  * s part flips (rs = −1), p is kept (rp = +1), as metalReflectIn for the back reflector. k in pin[0..2], cosI = k·n
